@@ -1,0 +1,152 @@
+//! Time grids that map irregular visit times to bins.
+//!
+//! Two kinds: bin edges e_0 < e_1 < ... < e_k giving bins [e_0, e_1), ..., [e_(k-1), e_k] (the
+//! last bin closed so the end point counts), and a nominal schedule s_1 < ... < s_k with a
+//! tolerance w, where a visit at t belongs to the nominal time nearest to it if |t - s| <= w
+//! (when two nominal times are equally near, the earlier one). Times outside every bin belong to
+//! none.
+
+use serde::Serialize;
+
+use crate::error::{Error, Result};
+
+/// A validated grid of time bins.
+///
+/// # Examples
+/// ```
+/// use trajweave_core::TimeGrid;
+/// # fn main() -> trajweave_core::Result<()> {
+/// let g = TimeGrid::schedule(vec![0.0, 1.0, 2.0], 0.25)?;
+/// assert_eq!(g.bin_of(1.2), Some(1));
+/// assert_eq!(g.bin_of(1.5), None);
+/// let e = TimeGrid::edges(vec![0.0, 1.0, 2.0])?;
+/// assert_eq!(e.bin_of(2.0), Some(1));
+/// # Ok(()) }
+/// ```
+#[derive(Debug, Clone, PartialEq, Serialize)]
+#[serde(tag = "kind", rename_all = "lowercase")]
+pub enum TimeGrid {
+    /// Bins between consecutive edges.
+    Edges {
+        /// Strictly increasing bin edges (at least two).
+        edges: Vec<f64>,
+    },
+    /// Windows around nominal visit times.
+    Schedule {
+        /// Strictly increasing nominal times (at least one).
+        times: Vec<f64>,
+        /// Half-width of each window (>= 0).
+        tolerance: f64,
+    },
+}
+
+impl TimeGrid {
+    /// A grid from bin edges.
+    ///
+    /// # Errors
+    /// [`Error::InvalidOption`] unless there are at least two finite, strictly increasing edges.
+    pub fn edges(edges: Vec<f64>) -> Result<TimeGrid> {
+        if edges.len() < 2 {
+            return Err(Error::option(
+                "edges",
+                format!("{} edge(s)", edges.len()),
+                "give at least two bin edges",
+            ));
+        }
+        check_increasing("edges", &edges)?;
+        Ok(TimeGrid::Edges { edges })
+    }
+
+    /// A grid from nominal visit times and a tolerance window.
+    ///
+    /// # Errors
+    /// [`Error::InvalidOption`] unless the times are non-empty, finite and strictly increasing
+    /// and the tolerance is finite and >= 0.
+    pub fn schedule(times: Vec<f64>, tolerance: f64) -> Result<TimeGrid> {
+        if times.is_empty() {
+            return Err(Error::option(
+                "schedule",
+                "no times",
+                "give at least one nominal time",
+            ));
+        }
+        check_increasing("schedule", &times)?;
+        if !(tolerance.is_finite() && tolerance >= 0.0) {
+            return Err(Error::option(
+                "tolerance",
+                tolerance,
+                "give a finite tolerance >= 0 (half the width of each window)",
+            ));
+        }
+        Ok(TimeGrid::Schedule { times, tolerance })
+    }
+
+    /// Number of bins.
+    pub fn n_bins(&self) -> usize {
+        match self {
+            TimeGrid::Edges { edges } => edges.len() - 1,
+            TimeGrid::Schedule { times, .. } => times.len(),
+        }
+    }
+
+    /// The bin holding time `t`, if any.
+    pub fn bin_of(&self, t: f64) -> Option<usize> {
+        match self {
+            TimeGrid::Edges { edges } => {
+                let k = edges.len() - 1;
+                if t < edges[0] || t > edges[k] || t.is_nan() {
+                    return None;
+                }
+                // Number of edges <= t, minus one, is the bin; t == last edge joins the last bin.
+                let i = edges.partition_point(|&e| e <= t);
+                Some((i - 1).min(k - 1))
+            }
+            TimeGrid::Schedule { times, tolerance } => {
+                let i = times.partition_point(|&s| s < t);
+                let mut best: Option<(usize, f64)> = None;
+                for j in [i.wrapping_sub(1), i] {
+                    if let Some(&s) = times.get(j) {
+                        let d = (t - s).abs();
+                        if d <= *tolerance && best.is_none_or(|(_, bd)| d < bd) {
+                            best = Some((j, d));
+                        }
+                    }
+                }
+                best.map(|(j, _)| j)
+            }
+        }
+    }
+
+    /// The (lower, upper) time limits of bin `i`.
+    pub fn limits(&self, i: usize) -> (f64, f64) {
+        match self {
+            TimeGrid::Edges { edges } => (edges[i], edges[i + 1]),
+            TimeGrid::Schedule { times, tolerance } => (times[i] - tolerance, times[i] + tolerance),
+        }
+    }
+
+    /// A short label for bin `i`: the nominal time, or `[lower, upper)`.
+    pub fn label(&self, i: usize) -> String {
+        match self {
+            TimeGrid::Edges { edges } => {
+                let close = if i + 2 == edges.len() { "]" } else { ")" };
+                format!("[{}, {}{close}", edges[i], edges[i + 1])
+            }
+            TimeGrid::Schedule { times, .. } => format!("{}", times[i]),
+        }
+    }
+}
+
+fn check_increasing(argument: &str, v: &[f64]) -> Result<()> {
+    if let Some(x) = v.iter().find(|x| !x.is_finite()) {
+        return Err(Error::option(argument, x, "every value must be finite"));
+    }
+    if let Some(w) = v.windows(2).find(|w| w[1] <= w[0]) {
+        return Err(Error::option(
+            argument,
+            format!("{} then {}", w[0], w[1]),
+            "values must be strictly increasing",
+        ));
+    }
+    Ok(())
+}

@@ -1,0 +1,517 @@
+//! The validated, sorted panel every estimator reads.
+//!
+//! Rows are checked once (lengths, finite times and covariates, present subject ids, the
+//! response under the [`Missing`] policy), then stably sorted by (subject, time) so each subject
+//! is one contiguous run, addressed by offsets as in a CSR matrix. The permutation is kept:
+//! [`Panel::to_input_order`] puts any per-row result back in the caller's row order, with NaN in
+//! rows that were dropped, so nothing is silently reordered or lost.
+
+use std::collections::HashMap;
+use std::fmt;
+
+use serde::Serialize;
+
+use crate::error::{Error, Result};
+
+/// Subject ids as they arrive from a front end, one per row.
+#[derive(Debug, Clone, PartialEq)]
+pub enum SubjectIds {
+    /// Integer ids; `None` is a missing id.
+    Int(Vec<Option<i64>>),
+    /// Numeric ids held as floating point (R's default numeric type); NaN is a missing id and a
+    /// value with a fractional part is refused.
+    Float(Vec<f64>),
+    /// Text ids; `None` and blank strings are missing ids.
+    Text(Vec<Option<String>>),
+}
+
+impl SubjectIds {
+    /// Number of rows.
+    pub fn len(&self) -> usize {
+        match self {
+            SubjectIds::Int(v) => v.len(),
+            SubjectIds::Float(v) => v.len(),
+            SubjectIds::Text(v) => v.len(),
+        }
+    }
+
+    /// True when there are no rows.
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+}
+
+/// One subject's id. Integer ids sort numerically, text ids by their bytes.
+#[derive(Debug, Clone, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize)]
+#[serde(untagged)]
+pub enum SubjectId {
+    /// An integer id.
+    Int(i64),
+    /// A text id.
+    Text(String),
+}
+
+impl fmt::Display for SubjectId {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            SubjectId::Int(i) => write!(f, "{i}"),
+            SubjectId::Text(s) => f.write_str(s),
+        }
+    }
+}
+
+/// What to do with a row whose response is not finite.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Missing {
+    /// Refuse the input, naming the first such row (the default).
+    #[default]
+    Error,
+    /// Drop such rows and report how many were dropped.
+    Drop,
+}
+
+impl std::str::FromStr for Missing {
+    type Err = Error;
+
+    /// Parses `"error"` or `"drop"`.
+    fn from_str(s: &str) -> Result<Self> {
+        match s {
+            "error" => Ok(Missing::Error),
+            "drop" => Ok(Missing::Drop),
+            other => Err(Error::option(
+                "missing",
+                format!("{other:?}"),
+                "use \"error\" (the default) or \"drop\"",
+            )),
+        }
+    }
+}
+
+/// A named numeric covariate, one value per row.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Covariate {
+    /// The covariate's name.
+    pub name: String,
+    /// Its values, in the caller's row order.
+    pub values: Vec<f64>,
+}
+
+impl Covariate {
+    /// A covariate from a name and values.
+    pub fn new(name: impl Into<String>, values: Vec<f64>) -> Self {
+        Covariate {
+            name: name.into(),
+            values,
+        }
+    }
+}
+
+/// A covariate as held by a panel: values in panel (sorted) order.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PanelCovariate {
+    /// The covariate's name.
+    pub name: String,
+    /// Values in panel order.
+    pub values: Vec<f64>,
+    /// True when the value never changes within a subject.
+    pub time_fixed: bool,
+}
+
+/// Validated repeated measurements, sorted by (subject, time).
+///
+/// # Examples
+/// ```
+/// use trajweave_core::{Missing, Panel, SubjectIds};
+/// # fn main() -> trajweave_core::Result<()> {
+/// let ids = SubjectIds::Int(vec![Some(2), Some(1), Some(2)]);
+/// let panel = Panel::new(ids, &[1.0, 0.0, 0.0], &[5.0, 7.0, 6.0], vec![], Missing::Error)?;
+/// assert_eq!(panel.n_subjects(), 2);
+/// assert_eq!(panel.response(), &[7.0, 6.0, 5.0]); // subject 1, then subject 2 by time
+/// // Per-row results go back in the caller's order:
+/// assert_eq!(panel.to_input_order(panel.response()), vec![5.0, 7.0, 6.0]);
+/// # Ok(()) }
+/// ```
+#[derive(Debug, Clone, PartialEq)]
+pub struct Panel {
+    ids: Vec<SubjectId>,
+    offsets: Vec<usize>,
+    time: Vec<f64>,
+    response: Vec<f64>,
+    covariates: Vec<PanelCovariate>,
+    order: Vec<usize>,
+    n_input: usize,
+    dropped_rows: Vec<usize>,
+}
+
+impl Panel {
+    /// Builds a panel from one subject id, time and response per row, plus optional numeric
+    /// covariates (time-fixed or time-varying; which one is detected).
+    ///
+    /// # Errors
+    /// [`Error::LengthMismatch`] when lengths differ; [`Error::Missing`] for a missing subject
+    /// id, or a NaN response under [`Missing::Error`]; [`Error::NonFinite`] for a non-finite
+    /// time or covariate, or an infinite response under [`Missing::Error`];
+    /// [`Error::InvalidValue`] for a fractional numeric subject id; [`Error::InvalidOption`] for
+    /// a blank or repeated covariate name; [`Error::Empty`] when no rows are given or none are
+    /// left after dropping.
+    pub fn new(
+        subjects: SubjectIds,
+        time: &[f64],
+        response: &[f64],
+        covariates: Vec<Covariate>,
+        missing: Missing,
+    ) -> Result<Panel> {
+        let n = subjects.len();
+        check_len("time", time.len(), n)?;
+        check_len("response", response.len(), n)?;
+        check_covariate_names(&covariates)?;
+        for c in &covariates {
+            check_len(&c.name, c.values.len(), n)?;
+        }
+        if n == 0 {
+            return Err(Error::Empty {
+                stage: "in the input".into(),
+                fix: "give at least one row".into(),
+            });
+        }
+        let (keys, ids) = subject_keys(&subjects)?;
+
+        let mut kept = Vec::with_capacity(n);
+        let mut dropped_rows = Vec::new();
+        for row in 0..n {
+            let t = time[row];
+            if !t.is_finite() {
+                return Err(non_finite("time", row, t));
+            }
+            for c in &covariates {
+                let v = c.values[row];
+                if !v.is_finite() {
+                    return Err(non_finite(&c.name, row, v));
+                }
+            }
+            let y = response[row];
+            if !y.is_finite() {
+                match missing {
+                    Missing::Drop => {
+                        dropped_rows.push(row);
+                        continue;
+                    }
+                    Missing::Error if y.is_nan() => {
+                        return Err(Error::Missing {
+                            argument: "response".into(),
+                            row: row + 1,
+                            fix: "pass missing = \"drop\" to drop such rows, or fill them in"
+                                .into(),
+                        })
+                    }
+                    Missing::Error => return Err(non_finite("response", row, y)),
+                }
+            }
+            kept.push(row);
+        }
+        if kept.is_empty() {
+            return Err(Error::Empty {
+                stage: format!(
+                    "after dropping {} rows with a non-finite `response`",
+                    dropped_rows.len()
+                ),
+                fix: "check the response column; every value is missing or infinite".into(),
+            });
+        }
+
+        // `+ 0.0` turns -0.0 into 0.0 so the two count as the same visit time.
+        let t_of = |row: usize| time[row] + 0.0;
+        // Stable: rows with equal (subject, time) keep their input order.
+        kept.sort_by(|&a, &b| keys[a].cmp(&keys[b]).then(t_of(a).total_cmp(&t_of(b))));
+
+        let mut offsets = vec![0];
+        let mut run_ids = Vec::new();
+        for (pos, &row) in kept.iter().enumerate() {
+            if pos == 0 || keys[row] != keys[kept[pos - 1]] {
+                if pos > 0 {
+                    offsets.push(pos);
+                }
+                run_ids.push(ids[keys[row]].clone());
+            }
+        }
+        offsets.push(kept.len());
+
+        let covariates = covariates
+            .into_iter()
+            .map(|c| {
+                let values: Vec<f64> = kept.iter().map(|&r| c.values[r]).collect();
+                let time_fixed = offsets
+                    .windows(2)
+                    .all(|w| values[w[0]..w[1]].iter().all(|&v| v == values[w[0]]));
+                PanelCovariate {
+                    name: c.name,
+                    values,
+                    time_fixed,
+                }
+            })
+            .collect();
+
+        Ok(Panel {
+            ids: run_ids,
+            offsets,
+            time: kept.iter().map(|&r| t_of(r)).collect(),
+            response: kept.iter().map(|&r| response[r]).collect(),
+            covariates,
+            order: kept,
+            n_input: n,
+            dropped_rows,
+        })
+    }
+
+    /// Number of subjects.
+    pub fn n_subjects(&self) -> usize {
+        self.ids.len()
+    }
+
+    /// Number of observations kept (rows after any dropping).
+    pub fn n_obs(&self) -> usize {
+        self.time.len()
+    }
+
+    /// Number of rows the caller gave.
+    pub fn n_input_rows(&self) -> usize {
+        self.n_input
+    }
+
+    /// Input rows (counted from 0) dropped under [`Missing::Drop`], in input order.
+    pub fn dropped_rows(&self) -> &[usize] {
+        &self.dropped_rows
+    }
+
+    /// Subject ids in panel order (sorted).
+    pub fn ids(&self) -> &[SubjectId] {
+        &self.ids
+    }
+
+    /// Run boundaries: subject `i` holds panel rows `offsets[i]..offsets[i + 1]`.
+    pub fn offsets(&self) -> &[usize] {
+        &self.offsets
+    }
+
+    /// The panel rows of subject `i` (in panel order).
+    pub fn subject_rows(&self, i: usize) -> std::ops::Range<usize> {
+        self.offsets[i]..self.offsets[i + 1]
+    }
+
+    /// Times in panel order.
+    pub fn time(&self) -> &[f64] {
+        &self.time
+    }
+
+    /// Responses in panel order.
+    pub fn response(&self) -> &[f64] {
+        &self.response
+    }
+
+    /// Covariates, values in panel order.
+    pub fn covariates(&self) -> &[PanelCovariate] {
+        &self.covariates
+    }
+
+    /// `order()[k]` is the input row (counted from 0) of panel row `k`.
+    pub fn order(&self) -> &[usize] {
+        &self.order
+    }
+
+    /// Puts a per-row result (in panel order) back in the caller's row order; dropped rows get
+    /// NaN, so the result has one entry per input row.
+    ///
+    /// # Panics
+    /// Never for `values` of length [`Panel::n_obs`]; extra values are ignored and missing ones
+    /// read as NaN.
+    pub fn to_input_order(&self, values: &[f64]) -> Vec<f64> {
+        let mut out = vec![f64::NAN; self.n_input];
+        for (&row, &v) in self.order.iter().zip(values) {
+            out[row] = v;
+        }
+        out
+    }
+}
+
+fn check_len(argument: &str, found: usize, expected: usize) -> Result<()> {
+    if found == expected {
+        return Ok(());
+    }
+    Err(Error::LengthMismatch {
+        argument: argument.to_string(),
+        reference: "subject".into(),
+        expected,
+        found,
+    })
+}
+
+fn check_covariate_names(covariates: &[Covariate]) -> Result<()> {
+    for (k, c) in covariates.iter().enumerate() {
+        if c.name.trim().is_empty() {
+            return Err(Error::option(
+                "covariates",
+                format!("a covariate named {:?}", c.name),
+                "give every covariate a non-blank name",
+            ));
+        }
+        if covariates[..k].iter().any(|d| d.name == c.name) {
+            return Err(Error::option(
+                "covariates",
+                format!("two covariates named {:?}", c.name),
+                "give each covariate its own name",
+            ));
+        }
+    }
+    Ok(())
+}
+
+fn non_finite(argument: &str, row: usize, value: f64) -> Error {
+    Error::NonFinite {
+        argument: argument.to_string(),
+        row: row + 1,
+        value: format!("{value}"),
+    }
+}
+
+fn missing_subject(row: usize) -> Error {
+    Error::Missing {
+        argument: "subject".into(),
+        row: row + 1,
+        fix: "every row needs a subject id; remove the row or fill in the id".into(),
+    }
+}
+
+/// Per row, the rank of its subject among the distinct ids (so sorting rows by key sorts them by
+/// id), and the distinct ids in that order.
+fn subject_keys(subjects: &SubjectIds) -> Result<(Vec<usize>, Vec<SubjectId>)> {
+    match subjects {
+        SubjectIds::Int(v) => {
+            let ints = v
+                .iter()
+                .enumerate()
+                .map(|(row, id)| id.ok_or_else(|| missing_subject(row)))
+                .collect::<Result<Vec<i64>>>()?;
+            Ok(rank_keys(&ints, SubjectId::Int))
+        }
+        SubjectIds::Float(v) => {
+            let ints = v
+                .iter()
+                .enumerate()
+                .map(|(row, &x)| float_id(row, x))
+                .collect::<Result<Vec<i64>>>()?;
+            Ok(rank_keys(&ints, SubjectId::Int))
+        }
+        SubjectIds::Text(v) => {
+            let texts = v
+                .iter()
+                .enumerate()
+                .map(|(row, id)| match id {
+                    Some(s) if !s.trim().is_empty() => Ok(s.as_str()),
+                    _ => Err(missing_subject(row)),
+                })
+                .collect::<Result<Vec<&str>>>()?;
+            Ok(rank_keys(&texts, |s: &str| SubjectId::Text(s.to_string())))
+        }
+    }
+}
+
+fn float_id(row: usize, x: f64) -> Result<i64> {
+    if x.is_nan() {
+        return Err(missing_subject(row));
+    }
+    // 2^53: beyond it not every integer is representable, so ids could merge.
+    if !x.is_finite() || x.fract() != 0.0 || x.abs() > 9_007_199_254_740_992.0 {
+        return Err(Error::InvalidValue {
+            argument: "subject".into(),
+            row: row + 1,
+            value: format!("{x}"),
+            expected: "numeric subject ids must be whole numbers; use integers or text".into(),
+        });
+    }
+    Ok(x as i64)
+}
+
+fn rank_keys<K, F>(values: &[K], to_id: F) -> (Vec<usize>, Vec<SubjectId>)
+where
+    K: Ord + Copy + std::hash::Hash + Eq,
+    F: Fn(K) -> SubjectId,
+{
+    let mut distinct: Vec<K> = values.to_vec();
+    distinct.sort_unstable();
+    distinct.dedup();
+    let rank: HashMap<K, usize> = distinct.iter().enumerate().map(|(i, &k)| (k, i)).collect();
+    let keys = values.iter().map(|k| rank[k]).collect();
+    (keys, distinct.into_iter().map(to_id).collect())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn ints(v: &[i64]) -> SubjectIds {
+        SubjectIds::Int(v.iter().map(|&x| Some(x)).collect())
+    }
+
+    #[test]
+    fn sorts_stably_and_restores_order() {
+        let p = Panel::new(
+            ints(&[3, 1, 3, 1, 3]),
+            &[2.0, 1.0, 0.0, 0.0, 2.0],
+            &[10.0, 11.0, 12.0, 13.0, 14.0],
+            vec![Covariate::new("age", vec![50.0, 60.0, 50.0, 60.0, 50.0])],
+            Missing::Error,
+        )
+        .unwrap();
+        assert_eq!(p.ids(), &[SubjectId::Int(1), SubjectId::Int(3)]);
+        assert_eq!(p.offsets(), &[0, 2, 5]);
+        assert_eq!(p.time(), &[0.0, 1.0, 0.0, 2.0, 2.0]);
+        // Duplicated (3, 2.0): input row 0 stays before input row 4.
+        assert_eq!(p.order(), &[3, 1, 2, 0, 4]);
+        assert!(p.covariates()[0].time_fixed);
+        assert_eq!(
+            p.to_input_order(p.response()),
+            vec![10.0, 11.0, 12.0, 13.0, 14.0]
+        );
+    }
+
+    #[test]
+    fn drop_reports_and_fills_nan() {
+        let p = Panel::new(
+            ints(&[1, 1, 2]),
+            &[0.0, 1.0, 0.0],
+            &[1.0, f64::NAN, f64::INFINITY],
+            vec![],
+            Missing::Drop,
+        )
+        .unwrap();
+        assert_eq!(p.dropped_rows(), &[1, 2]);
+        let back = p.to_input_order(p.response());
+        assert_eq!(back[0], 1.0);
+        assert!(back[1].is_nan() && back[2].is_nan());
+    }
+
+    #[test]
+    fn text_ids_sort_by_bytes_and_blank_is_missing() {
+        let ids = SubjectIds::Text(vec![Some("b".into()), Some("a".into())]);
+        let p = Panel::new(ids, &[0.0, 0.0], &[1.0, 2.0], vec![], Missing::Error).unwrap();
+        assert_eq!(p.ids()[0], SubjectId::Text("a".into()));
+        let ids = SubjectIds::Text(vec![Some("b".into()), Some("  ".into())]);
+        let e = Panel::new(ids, &[0.0, 0.0], &[1.0, 2.0], vec![], Missing::Error).unwrap_err();
+        assert_eq!(e.kind(), "missing");
+        assert_eq!(e.row(), Some(2));
+    }
+
+    #[test]
+    fn time_varying_covariate_detected() {
+        let p = Panel::new(
+            ints(&[1, 1]),
+            &[0.0, 1.0],
+            &[1.0, 2.0],
+            vec![Covariate::new("dose", vec![1.0, 2.0])],
+            Missing::Error,
+        )
+        .unwrap();
+        assert!(!p.covariates()[0].time_fixed);
+    }
+}
