@@ -81,6 +81,51 @@ impl TimeGrid {
         Ok(TimeGrid::Schedule { times, tolerance })
     }
 
+    /// The grid a front end's options ask for: bin `edges`, or a nominal `schedule` with a
+    /// `tolerance`, or neither (no grid). Every front calls this, so all give the same errors.
+    ///
+    /// # Examples
+    /// ```
+    /// use trajweave_core::TimeGrid;
+    /// # fn main() -> trajweave_core::Result<()> {
+    /// assert!(TimeGrid::from_options(None, None, None)?.is_none());
+    /// let g = TimeGrid::from_options(None, Some(vec![0.0, 1.0]), Some(0.1))?.unwrap();
+    /// assert_eq!(g.n_bins(), 2);
+    /// assert!(TimeGrid::from_options(Some(vec![0.0, 1.0]), Some(vec![0.0]), None).is_err());
+    /// # Ok(()) }
+    /// ```
+    ///
+    /// # Errors
+    /// [`Error::InvalidOption`] when both kinds are given, when a schedule lacks a tolerance or
+    /// a tolerance comes without a schedule, or when [`TimeGrid::edges`] or
+    /// [`TimeGrid::schedule`] refuses the values.
+    pub fn from_options(
+        edges: Option<Vec<f64>>,
+        schedule: Option<Vec<f64>>,
+        tolerance: Option<f64>,
+    ) -> Result<Option<TimeGrid>> {
+        match (edges, schedule, tolerance) {
+            (None, None, None) => Ok(None),
+            (Some(e), None, None) => TimeGrid::edges(e).map(Some),
+            (None, Some(s), Some(w)) => TimeGrid::schedule(s, w).map(Some),
+            (Some(_), Some(_), _) => Err(Error::option(
+                "edges",
+                "given together with `schedule`",
+                "give either bin edges or a schedule, not both",
+            )),
+            (None, Some(_), None) => Err(Error::option(
+                "tolerance",
+                "not given",
+                "a schedule needs a tolerance (half the width of each window)",
+            )),
+            (_, None, Some(_)) => Err(Error::option(
+                "tolerance",
+                "given without `schedule`",
+                "a tolerance goes with a nominal schedule; give `schedule` too",
+            )),
+        }
+    }
+
     /// Number of bins.
     pub fn n_bins(&self) -> usize {
         match self {
