@@ -10,8 +10,9 @@
 //! stationary Gaussian process with variance serial_sd^2 and correlation exp(-|u| / serial_range)
 //! (drawn exactly at irregular times as an Ornstein-Uhlenbeck chain), and e ~ N(0, noise_sd^2)
 //! measurement error. Visits start at 0; each gap is visit_interval (1 + visit_jitter (2U - 1))
-//! for uniform U, until an available follow-up drawn uniformly in [min_years, max_years].
-//! After each visit j >= 1 the subject leaves with probability
+//! for uniform U, until an available follow-up drawn uniformly in [min_years, max_years]; each
+//! visit after the first is missed (not recorded, the process going on) with probability
+//! missed_visit. After each recorded visit j >= 1 the subject leaves with probability
 //! logistic(dropout_base + dropout_decline max(0, decline)), decline being the fall in y since
 //! the previous visit in units per year: steep decline raises the hazard (the start of dialysis
 //! in the scenario). Covariates: age ~ N(62, 12^2) clipped to [18, 95], female ~ Bernoulli(0.45),
@@ -42,6 +43,8 @@ pub struct SimulateOptions {
     pub visit_interval: f64,
     /// Relative spread of gaps, in [0, 1).
     pub visit_jitter: f64,
+    /// Probability that a visit after the first is missed, in [0, 1).
+    pub missed_visit: f64,
     /// Mean response at enrolment for the reference patient (age 60, male, no diabetes).
     pub intercept: f64,
     /// Mean change per year for the reference patient (acr 30 mg/g).
@@ -77,10 +80,11 @@ impl Default for SimulateOptions {
         SimulateOptions {
             subjects: 3000,
             seed: 2026,
-            min_years: 1.0,
+            min_years: 0.0,
             max_years: 8.0,
             visit_interval: 0.5,
             visit_jitter: 0.6,
+            missed_visit: 0.1,
             intercept: 58.0,
             slope: -1.2,
             age_effect: -0.4,
@@ -93,20 +97,21 @@ impl Default for SimulateOptions {
             serial_sd: 4.0,
             serial_range: 1.5,
             noise_sd: 3.0,
-            dropout_base: -4.0,
-            dropout_decline: 0.25,
+            dropout_base: -3.5,
+            dropout_decline: 0.05,
         }
     }
 }
 
 /// Names accepted by [`SimulateOptions::set`], in the order of the struct's fields.
-pub const SIMULATE_OPTION_NAMES: [&str; 20] = [
+pub const SIMULATE_OPTION_NAMES: [&str; 21] = [
     "subjects",
     "seed",
     "min_years",
     "max_years",
     "visit_interval",
     "visit_jitter",
+    "missed_visit",
     "intercept",
     "slope",
     "age_effect",
@@ -187,6 +192,9 @@ impl SimulateOptions {
             "visit_interval" => self.visit_interval = in_range(value > 0.0, "a number > 0")?,
             "visit_jitter" => {
                 self.visit_jitter = in_range((0.0..1.0).contains(&value), "a number in [0, 1)")?
+            }
+            "missed_visit" => {
+                self.missed_visit = in_range((0.0..1.0).contains(&value), "a number in [0, 1)")?
             }
             "intercept" => self.intercept = finite("a finite number")?,
             "slope" => self.slope = finite("a finite number")?,
@@ -323,10 +331,13 @@ pub fn simulate(o: &SimulateOptions) -> Result<SimulatedPanel> {
         let mut w = o.serial_sd * rng.normal();
         loop {
             let y = a + b * t + w + o.noise_sd * rng.normal();
-            times.push(t);
-            ys.push(y);
+            let recorded = t == 0.0 || rng.uniform() >= o.missed_visit;
+            if recorded {
+                times.push(t);
+                ys.push(y);
+            }
             let j = ys.len() - 1;
-            if j >= 1 {
+            if recorded && j >= 1 {
                 let decline = (ys[j - 1] - ys[j]) / (times[j] - times[j - 1]);
                 let eta = o.dropout_base + o.dropout_decline * decline.max(0.0);
                 if rng.uniform() < 1.0 / (1.0 + libm::exp(-eta)) {
