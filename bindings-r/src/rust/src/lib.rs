@@ -1,1 +1,26 @@
-pub fn x(){}
+//! The R package's native half: each `#[extendr]` function converts its R arguments, calls
+//! trajweave-core and converts the result back. No statistic is computed here or in R.
+//!
+//! No error crosses into R as a Rust panic or as an error raised from Rust: every entry point
+//! returns `list(ok = value)` or `list(error_kind = kind, message = text)` (see [`error`]), and
+//! the R wrapper raises the classed condition. A core error therefore never unwinds through R.
+//!
+//! Files mirror the core's modules: `panel.rs`, `describe.rs`, `simulate.rs`, `error.rs`;
+//! `convert.rs` and `json.rs` hold the R value conversions they share.
+
+use extendr_api::prelude::*;
+
+mod convert;
+mod describe;
+mod error;
+mod json;
+mod panel;
+mod simulate;
+
+extendr_module! {
+    mod trajweave;
+    use error;
+    use panel;
+    use describe;
+    use simulate;
+}

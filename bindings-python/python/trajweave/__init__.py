@@ -1,0 +1,37 @@
+"""trajweave: explore longitudinal (repeated-measures) data before modelling it.
+
+>>> import trajweave as tw
+>>> df = tw.simulate(subjects=200, seed=7)
+>>> panel = tw.Panel.from_frame(df, subject="patient", time="years", response="egfr")
+>>> tw.describe(panel).subjects
+200
+"""
+
+from .describe import Description, describe
+from .errors import (
+    EmptyInputError,
+    InvalidOptionError,
+    InvalidValueError,
+    LengthMismatchError,
+    MissingValueError,
+    NonFiniteError,
+    TooFewError,
+    TrajweaveError,
+)
+from .panel import Panel
+from .simulate import simulate
+
+__all__ = [
+    "Panel",
+    "describe",
+    "Description",
+    "simulate",
+    "TrajweaveError",
+    "LengthMismatchError",
+    "NonFiniteError",
+    "MissingValueError",
+    "InvalidValueError",
+    "InvalidOptionError",
+    "EmptyInputError",
+    "TooFewError",
+]

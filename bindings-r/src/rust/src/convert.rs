@@ -1,0 +1,156 @@
+//! R values to Rust inputs and Rust results to R values, shared by the entry points.
+//!
+//! The R wrappers coerce numbers with `as.double()` and text with `enc2utf8()` before calling,
+//! so the checks here only catch what slipped past them; they answer with an error, never a
+//! panic.
+
+use extendr_api::prelude::*;
+
+use crate::error::{invalid_option, Failure};
+
+/// A value as a short text, the way the core shows values in messages: text quoted, numbers
+/// plain, anything longer described by its type and length.
+pub fn value_text(x: &Robj) -> String {
+    if x.len() == 1 && x.class().is_none() {
+        match x.rtype() {
+            Rtype::Strings => {
+                if let Some(s) = Strings::try_from(x.clone()).ok().map(|s| s.elt(0)) {
+                    return if s.is_na() {
+                        "NA".into()
+                    } else {
+                        format!("{:?}", s.as_ref() as &str)
+                    };
+                }
+            }
+            Rtype::Doubles => {
+                if let Some(v) = x.as_real_slice().and_then(|v| v.first()) {
+                    return if Rfloat::from(*v).is_na() {
+                        "NA".into()
+                    } else {
+                        format!("{v}")
+                    };
+                }
+            }
+            Rtype::Integers => {
+                if let Some(&v) = x.as_integer_slice().and_then(|v| v.first()) {
+                    return if v == i32::MIN {
+                        "NA".into()
+                    } else {
+                        format!("{v}")
+                    };
+                }
+            }
+            Rtype::Logicals => {
+                if let Some(v) = x.as_logical_slice().and_then(|v| v.first()) {
+                    return if v.is_na() {
+                        "NA"
+                    } else if v.is_true() {
+                        "TRUE"
+                    } else {
+                        "FALSE"
+                    }
+                    .into();
+                }
+            }
+            _ => {}
+        }
+    }
+    if x.is_null() {
+        return "NULL".into();
+    }
+    if let Some(class) = x.class().and_then(|mut c| c.next()) {
+        return format!("an object of class {class:?}");
+    }
+    let kind = match x.rtype() {
+        Rtype::Doubles => "a numeric vector",
+        Rtype::Integers => "an integer vector",
+        Rtype::Strings => "a character vector",
+        Rtype::Logicals => "a logical vector",
+        Rtype::List => "a list",
+        Rtype::Function | Rtype::Builtin | Rtype::Special => return "a function".into(),
+        _ => return "an R object of another type".into(),
+    };
+    format!("{kind} of length {}", x.len())
+}
+
+/// The numbers of a double vector (the R wrapper has applied `as.double()`).
+pub fn real_slice<'a>(x: &'a Robj, argument: &str) -> Result<&'a [f64], Failure> {
+    if x.rtype() != Rtype::Doubles {
+        return Err(invalid_option(argument, value_text(x), "give numbers"));
+    }
+    // A zero-length vector has no data pointer worth reading.
+    if x.is_empty() {
+        return Ok(&[]);
+    }
+    x.as_real_slice()
+        .ok_or_else(|| invalid_option(argument, value_text(x), "give numbers"))
+}
+
+/// `NULL` as `None`, otherwise the numbers.
+pub fn optional_reals(x: &Robj, argument: &str) -> Result<Option<Vec<f64>>, Failure> {
+    if x.is_null() {
+        return Ok(None);
+    }
+    real_slice(x, argument).map(|v| Some(v.to_vec()))
+}
+
+/// `NULL` as `None`, otherwise exactly one number.
+pub fn optional_real(x: &Robj, argument: &str) -> Result<Option<f64>, Failure> {
+    if x.is_null() {
+        return Ok(None);
+    }
+    match real_slice(x, argument)? {
+        [v] => Ok(Some(*v)),
+        _ => Err(invalid_option(argument, value_text(x), "give one number")),
+    }
+}
+
+/// The elements of a character vector, `None` for `NA`.
+pub fn strings(x: &Robj, argument: &str) -> Result<Vec<Option<String>>, Failure> {
+    let s = Strings::try_from(x.clone())
+        .map_err(|_| invalid_option(argument, value_text(x), "give text"))?;
+    Ok((0..s.len())
+        .map(|i| {
+            let e = s.elt(i);
+            if e.is_na() {
+                None
+            } else {
+                Some(<&str>::from(&e).to_string())
+            }
+        })
+        .collect())
+}
+
+/// The elements of a list.
+pub fn list_values(x: &Robj, argument: &str) -> Result<Vec<Robj>, Failure> {
+    let list = x
+        .as_list()
+        .ok_or_else(|| invalid_option(argument, value_text(x), "give a list"))?;
+    Ok(list.values().collect())
+}
+
+/// A named list.
+pub fn named_list<'a>(
+    names: impl ExactSizeIterator<Item = &'a str>,
+    values: Vec<Robj>,
+) -> Result<Robj, Failure> {
+    let mut list: Robj = List::from_values(values).into();
+    list.set_names(names)?;
+    Ok(list)
+}
+
+/// A data.frame of equal-length columns with automatic row names.
+pub fn data_frame<'a>(
+    names: impl ExactSizeIterator<Item = &'a str>,
+    columns: Vec<Robj>,
+    rows: usize,
+) -> Result<Robj, Failure> {
+    let mut df = named_list(names, columns)?;
+    df.set_class(["data.frame"])?;
+    // R's compact form c(NA, -n) stands for 1..n.
+    match i32::try_from(rows) {
+        Ok(n) => df.set_attrib(row_names_symbol(), [i32::MIN, -n])?,
+        Err(_) => df.set_attrib(row_names_symbol(), (1..=rows).map(|i| i as f64).collect_robj())?,
+    };
+    Ok(df)
+}
