@@ -17,7 +17,10 @@ pub fn describe_panel(
     tolerance: Option<f64>,
 ) -> PyResult<(String, String)> {
     let grid = TimeGrid::from_options(edges, schedule, tolerance).py_err()?;
-    let d = py.detach(|| describe(&panel.inner, grid.as_ref())).py_err()?;
-    let json = serde_json::to_string(&d).map_err(|e| pyo3::exceptions::PyRuntimeError::new_err(e.to_string()))?;
+    let d = py
+        .detach(|| describe(&panel.inner, grid.as_ref()))
+        .py_err()?;
+    let json = serde_json::to_string(&d)
+        .map_err(|e| pyo3::exceptions::PyRuntimeError::new_err(e.to_string()))?;
     Ok((json, d.to_text()))
 }

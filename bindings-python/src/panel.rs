@@ -36,7 +36,8 @@ impl RawIds<'_> {
 
 fn slice(a: &PyReadonlyArray1<'_, f64>) -> Vec<f64> {
     // Contiguous input is copied in one go; strided views element by element.
-    a.as_slice().map_or_else(|_| a.as_array().to_vec(), <[f64]>::to_vec)
+    a.as_slice()
+        .map_or_else(|_| a.as_array().to_vec(), <[f64]>::to_vec)
 }
 
 #[pymethods]
@@ -93,8 +94,14 @@ impl NativePanel {
             .ids()
             .iter()
             .map(|id| match id {
-                SubjectId::Int(i) => i.into_pyobject(py).map(|o| o.into_any()).map_err(PyErr::from),
-                SubjectId::Text(s) => s.into_pyobject(py).map(|o| o.into_any()).map_err(PyErr::from),
+                SubjectId::Int(i) => i
+                    .into_pyobject(py)
+                    .map(|o| o.into_any())
+                    .map_err(PyErr::from),
+                SubjectId::Text(s) => s
+                    .into_pyobject(py)
+                    .map(|o| o.into_any())
+                    .map_err(PyErr::from),
             })
             .collect::<PyResult<_>>()?;
         PyList::new(py, items)
@@ -122,7 +129,11 @@ impl NativePanel {
 
     #[getter]
     fn covariate_names(&self) -> Vec<String> {
-        self.inner.covariates().iter().map(|c| c.name.clone()).collect()
+        self.inner
+            .covariates()
+            .iter()
+            .map(|c| c.name.clone())
+            .collect()
     }
 
     fn covariate<'py>(&self, py: Python<'py>, name: &str) -> Option<Bound<'py, PyArray1<f64>>> {

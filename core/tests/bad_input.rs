@@ -1,71 +1,14 @@
 //! The shared bad-input fixture (tests/fixtures/bad_input.json): every case gives its
 //! documented kind and exact message. The Python and R suites read the same file.
 
+mod common;
+
+use common::{build, number, numbers};
 use serde_json::Value;
-use trajweave_core::{
-    describe, Covariate, Error, Missing, Panel, SimulateOptions, SubjectIds, TimeGrid,
-};
+use trajweave_core::{describe, Error, Missing, Panel, SimulateOptions, SubjectIds, TimeGrid};
 
 fn fixture() -> Value {
-    let text = include_str!("../../tests/fixtures/bad_input.json");
-    serde_json::from_str(text).expect("fixture is valid JSON")
-}
-
-fn number(v: &Value) -> f64 {
-    match v {
-        Value::String(s) => match s.as_str() {
-            "nan" => f64::NAN,
-            "inf" => f64::INFINITY,
-            "-inf" => f64::NEG_INFINITY,
-            other => panic!("fixture: unknown number {other}"),
-        },
-        other => other.as_f64().expect("fixture: number"),
-    }
-}
-
-fn numbers(v: &Value) -> Vec<f64> {
-    v.as_array()
-        .expect("fixture: array")
-        .iter()
-        .map(number)
-        .collect()
-}
-
-fn subjects(case: &Value) -> SubjectIds {
-    let raw = case["subject"].as_array().expect("fixture: subject array");
-    match case["subject_type"]
-        .as_str()
-        .expect("fixture: subject_type")
-    {
-        "int" => SubjectIds::Int(raw.iter().map(|v| v.as_i64()).collect()),
-        "float" => SubjectIds::Float(raw.iter().map(number).collect()),
-        "text" => SubjectIds::Text(raw.iter().map(|v| v.as_str().map(String::from)).collect()),
-        other => panic!("fixture: subject_type {other}"),
-    }
-}
-
-fn build(case: &Value) -> Result<Panel, Error> {
-    let covariates = case
-        .get("covariates")
-        .and_then(Value::as_object)
-        .map(|m| {
-            m.iter()
-                .map(|(k, v)| Covariate::new(k.clone(), numbers(v)))
-                .collect()
-        })
-        .unwrap_or_default();
-    let missing: Missing = case
-        .get("missing")
-        .and_then(Value::as_str)
-        .unwrap_or("error")
-        .parse()?;
-    Panel::new(
-        subjects(case),
-        &numbers(&case["time"]),
-        &numbers(&case["response"]),
-        covariates,
-        missing,
-    )
+    common::load(include_str!("../../tests/fixtures/bad_input.json"))
 }
 
 fn check(name: &str, got: Result<impl std::fmt::Debug, Error>, case: &Value) {

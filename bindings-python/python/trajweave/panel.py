@@ -14,8 +14,9 @@ def _is_missing(x):
 
 def _ids(subject):
     """Classify subject ids for the native side (no statistics, only types)."""
-    if hasattr(subject, "dtype") and str(subject.dtype) in ("category", "string", "Int64", "Int32"):
-        subject = subject.astype(object).to_numpy()
+    if hasattr(subject, "dtype") and not isinstance(subject.dtype, np.dtype):
+        # pandas extension types (category, string, nullable Int64): plain objects, NA kept.
+        subject = np.asarray(subject, dtype=object)
     a = np.asarray(subject)
     if a.ndim != 1:
         raise InvalidOptionError(f"`subject` has {a.ndim} dimensions: give a one-dimensional sequence")
