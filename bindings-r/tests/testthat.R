@@ -1,0 +1,4 @@
+library(testthat)
+library(trajweave)
+
+test_check("trajweave")

@@ -1,0 +1,67 @@
+# Shared by the trajweave test files.
+
+# Quantiles recomputed in base R may differ from the core's in the last bits: R interpolates as
+# (1 - h) a + h b, the core as a + h (b - a). Counts are compared exactly.
+TOL_QUANTILE <- 1e-12
+
+# The directory of the cross-language fixtures: $TRAJWEAVE_FIXTURES if set, else the
+# tests/fixtures found by walking up from the test directory; NULL when neither exists (an
+# installed package checked outside the repository).
+tw_fixture_dir <- function() {
+  dir <- Sys.getenv("TRAJWEAVE_FIXTURES")
+  if (nzchar(dir)) {
+    return(dir)
+  }
+  here <- normalizePath(".", mustWork = FALSE)
+  repeat {
+    candidate <- file.path(here, "tests", "fixtures")
+    if (file.exists(file.path(candidate, "bad_input.json"))) {
+      return(candidate)
+    }
+    parent <- dirname(here)
+    if (identical(parent, here)) {
+      return(NULL)
+    }
+    here <- parent
+  }
+}
+
+tw_fixture <- function(name) {
+  dir <- tw_fixture_dir()
+  if (is.null(dir)) {
+    skip("the repository's tests/fixtures is not reachable; set TRAJWEAVE_FIXTURES")
+  }
+  jsonlite::fromJSON(file.path(dir, name), simplifyVector = FALSE)
+}
+
+# A fixture number: JSON numbers, or the strings "nan", "inf", "-inf".
+tw_number <- function(v) {
+  if (is.character(v)) {
+    switch(v, nan = NaN, inf = Inf, "-inf" = -Inf, stop("fixture: unknown number ", v))
+  } else {
+    as.double(v)
+  }
+}
+
+tw_numbers <- function(values) vapply(values, tw_number, numeric(1))
+
+# Subject ids typed as the fixture says; JSON null is NA.
+tw_subjects <- function(case) {
+  raw <- case$subject
+  switch(case$subject_type,
+    int = vapply(raw, function(v) if (is.null(v)) NA_integer_ else as.integer(v), integer(1)),
+    float = vapply(raw, function(v) if (is.null(v)) NA_real_ else tw_number(v), numeric(1)),
+    text = vapply(raw, function(v) if (is.null(v)) NA_character_ else v, character(1)),
+    stop("fixture: subject_type ", case$subject_type)
+  )
+}
+
+# Asserts a classed trajweave error with exactly this message.
+expect_tw_error <- function(expr, kind, message, info = NULL) {
+  err <- expect_error(expr, class = paste0("trajweave_", kind), info = info)
+  expect_s3_class(err, "trajweave_error")
+  expect_true(identical(conditionMessage(err), message),
+    info = paste0(info, ": got ", conditionMessage(err))
+  )
+  invisible(err)
+}
