@@ -1,0 +1,129 @@
+# describe() on R's ChickWeight data (datasets package; Crowder & Hand 1990, Analysis of
+# Repeated Measures, example 5.3): 50 chicks weighed on a 12-day schedule, some lost early.
+# Every expected value is recomputed here in base R from the data themselves.
+
+chick_days <- c(0, 2, 4, 6, 8, 10, 12, 14, 16, 18, 20, 21)
+
+chick_description <- function() {
+  p <- panel_from_frame(datasets::ChickWeight, "Chick", "Time", "weight")
+  describe(p, schedule = chick_days, tolerance = 0.4)
+}
+
+test_that("ChickWeight: sizes, visits and follow-up match base R", {
+  cw <- datasets::ChickWeight
+  d <- chick_description()
+  expect_identical(d$subjects, as.double(nlevels(cw$Chick)))
+  expect_identical(d$observations, as.double(nrow(cw)))
+  expect_identical(d$rows_dropped, 0)
+  expect_identical(d$time_range, range(as.double(cw$Time)))
+
+  # Five numbers of visits per chick: quantile(), type 7 (R's default).
+  visits <- quantile(as.vector(table(cw$Chick)), type = 7)
+  got <- d$visits_per_subject
+  expect_equal(unname(c(got$min, got$q1, got$median, got$q3, got$max)),
+    unname(visits),
+    tolerance = TOL_QUANTILE
+  )
+
+  # Follow-up: last minus first weighing day per chick.
+  follow <- quantile(tapply(cw$Time, cw$Chick, function(t) max(t) - min(t)))
+  got <- d$follow_up
+  expect_equal(unname(c(got$min, got$q1, got$median, got$q3, got$max)),
+    unname(follow),
+    tolerance = TOL_QUANTILE
+  )
+})
+
+test_that("ChickWeight: per-chick visits and patterns match a base-R classification", {
+  cw <- datasets::ChickWeight
+  d <- chick_description()
+  per <- d$grid$per_subject
+  expect_s3_class(per, "data.frame")
+  # Ids are text: the factor's labels.
+  expect_type(per$subject, "character")
+  expect_setequal(per$subject, levels(cw$Chick))
+
+  # Each weighing day is a scheduled day, so every visit is in its own bin and the seen marks
+  # count the visits.
+  expect_identical(d$grid$outside, 0)
+  visits <- table(cw$Chick)
+  seen_count <- nchar(gsub(".", "", per$seen, fixed = TRUE))
+  names(seen_count) <- per$subject
+  expect_identical(as.vector(seen_count[names(visits)]), as.vector(visits))
+
+  # Base-R classification on the 12-day schedule: complete = seen every day; monotone = seen
+  # exactly on the first L days, L < 12; intermittent otherwise.
+  expected <- vapply(levels(cw$Chick), function(chick) {
+    observed <- chick_days %in% cw$Time[cw$Chick == chick]
+    seen <- sum(observed)
+    if (seen == length(chick_days)) {
+      "complete"
+    } else if (all(observed[seq_len(seen)])) {
+      "monotone"
+    } else {
+      "intermittent"
+    }
+  }, character(1))
+  got <- setNames(per$pattern, per$subject)
+  expect_identical(got[names(expected)], expected)
+
+  counts <- table(factor(expected, levels = c("complete", "monotone", "intermittent")))
+  patterns <- d$grid$patterns
+  expect_identical(
+    c(patterns$complete, patterns$monotone, patterns$intermittent),
+    as.double(counts)
+  )
+  expect_identical(patterns$unobserved, 0)
+})
+
+test_that("ChickWeight: bin counts match a table of weighing days", {
+  cw <- datasets::ChickWeight
+  d <- chick_description()
+  bins <- d$grid$bins
+  expect_s3_class(bins, "data.frame")
+  by_day <- table(factor(cw$Time, levels = chick_days))
+  # One weighing per chick and day, so subjects and visits per bin are both the day's rows.
+  expect_identical(bins$subjects, as.double(by_day))
+  expect_identical(bins$observations, as.double(by_day))
+  expect_identical(bins$label, as.character(chick_days))
+  expect_equal(bins$lower, chick_days - 0.4, tolerance = 0)
+  expect_identical(d$grid$grid$kind, "schedule")
+  expect_identical(d$grid$grid$times, chick_days)
+})
+
+test_that("missing = \"drop\" reports the rows dropped", {
+  p <- panel(c(1L, 1L, 2L, 2L), c(0, 1, 0, 1), c(5, NA, 7, Inf), missing = "drop")
+  d <- describe(p)
+  expect_identical(d$rows_input, 4)
+  expect_identical(d$rows_dropped, 2)
+  expect_identical(d$observations, 2)
+  expect_identical(d$single_visit_subjects, 2)
+  # No subject has two visits left: no gap summary.
+  expect_null(d$gaps)
+  expect_identical(d$gap_count, 0)
+})
+
+test_that("print shows the core's text verbatim", {
+  d <- chick_description()
+  text <- attr(d, "text")
+  expect_type(text, "character")
+  expect_identical(capture.output(print(d)), strsplit(text, "\n", fixed = TRUE)[[1]])
+  expect_identical(format(d), text)
+  expect_match(text, "^subjects +50\n")
+  shown <- NULL
+  capture.output(shown <- withVisible(print(d)))
+  expect_false(shown$visible)
+})
+
+test_that("a panel prints its size", {
+  p <- panel(c(1L, 1L, 2L), c(0, 1, 0), c(5, NA, 7), covariates = list(age = c(50, 50, 60)),
+    missing = "drop"
+  )
+  out <- capture.output(print(p))
+  expect_identical(out, c(
+    "<trajweave panel>",
+    "subjects      2",
+    "observations  2 (of 3 rows; 1 dropped)",
+    "covariates    age"
+  ))
+})
