@@ -12,7 +12,7 @@ pub enum CliError {
         file: Option<String>,
         line: Option<u64>,
         column: Option<String>,
-        error: Error,
+        error: Box<Error>,
     },
     /// A cell that should hold a number does not.
     Cell {
@@ -81,7 +81,7 @@ impl From<Error> for CliError {
             file: None,
             line: None,
             column: None,
-            error,
+            error: Box::new(error),
         }
     }
 }

@@ -93,7 +93,7 @@ pub fn read_panel(path: &Path, cols: &Columns, missing: Missing) -> Result<Panel
             file: Some(file.clone()),
             line,
             column,
-            error: e,
+            error: Box::new(e),
         }
     })
 }

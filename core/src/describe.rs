@@ -45,8 +45,23 @@ pub struct Description {
     pub duplicated_rows: usize,
     /// The covariates and whether each is constant within subjects.
     pub covariates: Vec<CovariateKind>,
+    /// One row per subject, in panel (sorted id) order.
+    pub per_subject: Vec<SubjectSummary>,
     /// Bin counts and patterns, when a grid was given.
     pub grid: Option<GridDescription>,
+}
+
+/// One subject's visits and follow-up.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct SubjectSummary {
+    /// The subject.
+    pub subject: SubjectId,
+    /// Number of visits (rows kept).
+    pub visits: usize,
+    /// First visit time.
+    pub first: f64,
+    /// Last visit time.
+    pub last: f64,
 }
 
 /// A covariate's name and whether it is time-fixed.
@@ -154,8 +169,15 @@ pub fn describe(panel: &Panel, grid: Option<&TimeGrid>) -> Result<Description> {
     let mut follow = Vec::with_capacity(n_subj);
     let mut gaps = Vec::with_capacity(panel.n_obs().saturating_sub(n_subj));
     let mut duplicated = 0;
+    let mut per_subject = Vec::with_capacity(n_subj);
     for i in 0..n_subj {
         let ts = &t[panel.subject_rows(i)];
+        per_subject.push(SubjectSummary {
+            subject: panel.ids()[i].clone(),
+            visits: ts.len(),
+            first: ts[0],
+            last: ts[ts.len() - 1],
+        });
         visits.push(ts.len() as f64);
         follow.push(ts[ts.len() - 1] - ts[0]);
         for w in ts.windows(2) {
@@ -189,6 +211,7 @@ pub fn describe(panel: &Panel, grid: Option<&TimeGrid>) -> Result<Description> {
                 time_fixed: c.time_fixed,
             })
             .collect(),
+        per_subject,
         grid: grid.map(|g| describe_grid(panel, g)),
     })
 }

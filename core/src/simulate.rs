@@ -15,7 +15,7 @@
 //! missed_visit. After each recorded visit j >= 1 the subject leaves with probability
 //! logistic(dropout_base + dropout_decline max(0, decline)), decline being the fall in y since
 //! the previous visit in units per year: steep decline raises the hazard (the start of dialysis
-//! in the scenario). Covariates: age ~ N(62, 12^2) clipped to [18, 95], female ~ Bernoulli(0.45),
+//! in the scenario); a recorded value below dialysis_threshold ends follow-up outright. Covariates: age ~ N(62, 12^2) clipped to [18, 95], female ~ Bernoulli(0.45),
 //! diabetes ~ Bernoulli(0.35), acr ~ exp(N(ln 30, 1.2^2)).
 //!
 //! Random numbers come from [`crate::rng`], one stream per subject keyed by (seed, subject), so
@@ -73,6 +73,8 @@ pub struct SimulateOptions {
     pub dropout_base: f64,
     /// Increase of that log-odds per unit per year of decline.
     pub dropout_decline: f64,
+    /// A recorded value below this ends the subject's follow-up (dialysis starts).
+    pub dialysis_threshold: f64,
 }
 
 impl Default for SimulateOptions {
@@ -87,11 +89,11 @@ impl Default for SimulateOptions {
             missed_visit: 0.1,
             intercept: 58.0,
             slope: -1.2,
-            age_effect: -0.4,
+            age_effect: -0.3,
             female_effect: -2.0,
             diabetes_slope: -1.0,
             acr_slope: -0.6,
-            sd_intercept: 12.0,
+            sd_intercept: 10.0,
             sd_slope: 1.2,
             corr_intercept_slope: 0.2,
             serial_sd: 4.0,
@@ -99,12 +101,13 @@ impl Default for SimulateOptions {
             noise_sd: 3.0,
             dropout_base: -3.5,
             dropout_decline: 0.05,
+            dialysis_threshold: 10.0,
         }
     }
 }
 
 /// Names accepted by [`SimulateOptions::set`], in the order of the struct's fields.
-pub const SIMULATE_OPTION_NAMES: [&str; 21] = [
+pub const SIMULATE_OPTION_NAMES: [&str; 22] = [
     "subjects",
     "seed",
     "min_years",
@@ -126,6 +129,7 @@ pub const SIMULATE_OPTION_NAMES: [&str; 21] = [
     "noise_sd",
     "dropout_base",
     "dropout_decline",
+    "dialysis_threshold",
 ];
 
 /// Column names of a simulated panel, the same in every front.
@@ -213,6 +217,7 @@ impl SimulateOptions {
             "noise_sd" => self.noise_sd = in_range(value >= 0.0, "a number >= 0")?,
             "dropout_base" => self.dropout_base = finite("a finite number")?,
             "dropout_decline" => self.dropout_decline = in_range(value >= 0.0, "a number >= 0")?,
+            "dialysis_threshold" => self.dialysis_threshold = finite("a finite number")?,
             other => {
                 return Err(Error::option(
                     "simulate option",
@@ -335,6 +340,9 @@ pub fn simulate(o: &SimulateOptions) -> Result<SimulatedPanel> {
             if recorded {
                 times.push(t);
                 ys.push(y);
+            }
+            if recorded && y < o.dialysis_threshold {
+                break;
             }
             let j = ys.len() - 1;
             if recorded && j >= 1 {

@@ -41,6 +41,7 @@ fn describe_matches_pandas_reference() {
             "single_visit_subjects",
             "duplicated_rows",
             "covariates",
+            "per_subject",
         ] {
             assert_eq!(got[key], want[key], "{name}: {key}");
         }

@@ -26,6 +26,7 @@ fn quiet() -> SimulateOptions {
         o.set(name, 0.0).unwrap();
     }
     o.set("dropout_base", -60.0).unwrap();
+    o.set("dialysis_threshold", -1e9).unwrap();
     o
 }
 

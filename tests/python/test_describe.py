@@ -23,7 +23,7 @@ def test_fixture(case):
     d = build(case).describe(**case["grid"])
     got, want = d.to_dict(), case["expected"]
     for key in ["subjects", "observations", "rows_input", "rows_dropped", "gap_count",
-                "single_visit_subjects", "duplicated_rows", "covariates"]:
+                "single_visit_subjects", "duplicated_rows", "covariates", "per_subject"]:
         assert got[key] == want[key], key
     for key in ["visits_per_subject", "follow_up", "gaps"]:
         for q in ["min", "q1", "median", "q3", "max"]:

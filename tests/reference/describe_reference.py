@@ -105,6 +105,9 @@ def expected(case):
         "gap_count": len(gaps),
         "single_visit_subjects": int((visits == 1).sum()),
         "duplicated_rows": int(df.duplicated(["s", "t"]).sum()),
+        "per_subject": [{"subject": s if isinstance(s, str) else int(s), "visits": int(n),
+                         "first": float(g["t"].min()[s]), "last": float(g["t"].max()[s])}
+                        for s, n in visits.items()],
         "covariates": [{"name": name, "time_fixed": bool((g[name].nunique() == 1).all())}
                        for name in case["covariates"]],
     }

@@ -150,7 +150,10 @@ pub fn data_frame<'a>(
     // R's compact form c(NA, -n) stands for 1..n.
     match i32::try_from(rows) {
         Ok(n) => df.set_attrib(row_names_symbol(), [i32::MIN, -n])?,
-        Err(_) => df.set_attrib(row_names_symbol(), (1..=rows).map(|i| i as f64).collect_robj())?,
+        Err(_) => df.set_attrib(
+            row_names_symbol(),
+            (1..=rows).map(|i| i as f64).collect_robj(),
+        )?,
     };
     Ok(df)
 }

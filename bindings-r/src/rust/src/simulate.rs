@@ -48,10 +48,13 @@ fn option_number(x: &Robj) -> Option<f64> {
     }
     match x.rtype() {
         Rtype::Doubles => x.as_real_slice()?.first().copied(),
-        Rtype::Integers => x
-            .as_integer_slice()?
-            .first()
-            .map(|&i| if i == i32::MIN { f64::NAN } else { f64::from(i) }),
+        Rtype::Integers => x.as_integer_slice()?.first().map(|&i| {
+            if i == i32::MIN {
+                f64::NAN
+            } else {
+                f64::from(i)
+            }
+        }),
         _ => None,
     }
 }

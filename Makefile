@@ -1,0 +1,71 @@
+# One entry point: `make demo` runs the main job on the bundled data, `make test` runs every
+# suite after installing what it needs. See DEVELOPERS.md.
+SHELL := /bin/bash
+.DEFAULT_GOAL := demo
+
+VENV := .venv
+PY := $(CURDIR)/$(VENV)/bin/python
+RLIB := $(CURDIR)/.rlib
+CLI := target/release/trajweave
+DEMO_CSV := demo-data/kidney_registry.csv
+DEMO_COLUMNS := --subject patient --time years --response egfr \
+	--covariate age --covariate female --covariate diabetes --covariate acr
+# The command that made demo-data/kidney_registry.csv (checked byte for byte by `make test`).
+DEMO_SIMULATE := simulate --subjects 3000 --seed 2026 --digits 2
+
+export PYO3_PYTHON := $(PY)
+export TRAJWEAVE_CLI := $(CURDIR)/$(CLI)
+export R_LIBS := $(RLIB)
+
+.PHONY: demo cli test setup lint rust-test python python-test r r-test cross-test \
+	demo-data demo-data-check fixtures-check clean
+
+demo: cli
+	$(CLI) describe $(DEMO_CSV) $(DEMO_COLUMNS) --edges 0,1,2,3,4,5,6,7,8
+
+cli:
+	cargo build --release -p trajweave-cli
+
+test: setup lint rust-test python-test r-test cross-test demo-data-check fixtures-check
+	@echo "All suites passed."
+
+setup:
+	scripts/setup-r.sh
+	scripts/setup-python.sh
+
+lint:
+	cargo fmt --all -- --check
+	cargo clippy --workspace --all-targets -- -D warnings
+
+rust-test:
+	cargo test --workspace
+
+python: setup
+	cd bindings-python && VIRTUAL_ENV=$(CURDIR)/$(VENV) PATH=$(CURDIR)/$(VENV)/bin:$$PATH \
+		maturin develop --release --quiet
+
+python-test: python
+	$(PY) -m pytest -q tests/python
+
+r: setup
+	mkdir -p $(RLIB)
+	R CMD INSTALL --no-test-load --library=$(RLIB) bindings-r
+
+r-test: r
+	Rscript -e 'library(testthat); library(trajweave, lib.loc = "$(RLIB)"); test_dir("bindings-r/tests/testthat", stop_on_failure = TRUE)'
+
+cross-test: cli python r
+	$(PY) -m pytest -q tests/cross
+
+demo-data: cli
+	$(CLI) $(DEMO_SIMULATE) --out $(DEMO_CSV)
+
+demo-data-check: cli
+	$(CLI) $(DEMO_SIMULATE) --out - | cmp - $(DEMO_CSV)
+
+fixtures-check: setup
+	$(PY) tests/reference/describe_reference.py --check
+
+clean:
+	cargo clean
+	rm -rf $(VENV) $(RLIB) bindings-r/src/rust/target
