@@ -1,0 +1,316 @@
+//! The command line end to end: describe and simulate, and every bad-input case of
+//! tests/fixtures/bad_input.json that a CSV file can express, with the line and column named.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+use serde_json::Value;
+
+fn trajweave(args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_trajweave"))
+        .args(args)
+        .output()
+        .expect("the binary runs")
+}
+
+fn temp_csv(name: &str, text: &str) -> PathBuf {
+    let dir = std::env::temp_dir().join(format!("trajweave-cli-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = dir.join(name);
+    std::fs::write(&path, text).unwrap();
+    path
+}
+
+fn stderr(o: &Output) -> String {
+    String::from_utf8_lossy(&o.stderr).trim_end().to_string()
+}
+
+fn describe_json(path: &Path, extra: &[&str]) -> Value {
+    let p = path.to_str().unwrap();
+    let mut args = vec![
+        "describe",
+        p,
+        "--subject",
+        "id",
+        "--time",
+        "t",
+        "--response",
+        "y",
+        "--format",
+        "json",
+    ];
+    args.extend_from_slice(extra);
+    let o = trajweave(&args);
+    assert!(o.status.success(), "{}", stderr(&o));
+    serde_json::from_slice(&o.stdout).unwrap()
+}
+
+#[test]
+fn describe_table_and_json() {
+    let path = temp_csv(
+        "small.csv",
+        "id,t,y,age\n2,1,5,40\n1,0,7,50\n2,0,6,40\n2,0,6.5,40\n",
+    );
+    let d = describe_json(
+        &path,
+        &[
+            "--covariate",
+            "age",
+            "--schedule",
+            "0,1",
+            "--tolerance",
+            "0.1",
+        ],
+    );
+    // Worked by hand: subject 1 has 1 visit, subject 2 has 3 (one duplicated at time 0).
+    assert_eq!(d["subjects"], 2);
+    assert_eq!(d["duplicated_rows"], 1);
+    assert_eq!(d["single_visit_subjects"], 1);
+    assert_eq!(d["visits_per_subject"]["median"], 2.0);
+    assert_eq!(d["grid"]["patterns"]["complete"], 1);
+    assert_eq!(d["grid"]["patterns"]["monotone"], 1);
+    let o = trajweave(&[
+        "describe",
+        path.to_str().unwrap(),
+        "--subject",
+        "id",
+        "--time",
+        "t",
+        "--response",
+        "y",
+    ]);
+    let text = String::from_utf8(o.stdout).unwrap();
+    assert!(text.starts_with("subjects               2\n"), "{text}");
+}
+
+#[test]
+fn na_response_dropped_on_request() {
+    let path = temp_csv("na.csv", "id,t,y\n1,0,NA\n1,1,2\n2,0,\n");
+    let d = describe_json(&path, &["--missing", "drop"]);
+    assert_eq!(d["rows_dropped"], 2);
+    assert_eq!(d["observations"], 1);
+}
+
+#[test]
+fn simulate_is_seeded_and_exact() {
+    let a = trajweave(&["simulate", "--subjects", "20", "--seed", "5"]);
+    let b = trajweave(&["simulate", "--subjects", "20", "--seed", "5"]);
+    assert!(a.status.success());
+    assert_eq!(a.stdout, b.stdout);
+    let c = trajweave(&["simulate", "--subjects", "20", "--seed", "6"]);
+    assert_ne!(a.stdout, c.stdout);
+    let text = String::from_utf8(a.stdout).unwrap();
+    assert!(text.starts_with("patient,years,egfr,age,female,diabetes,acr\n1,0,"));
+    let bad = trajweave(&["simulate", "--set", "noise_sd"]);
+    assert_eq!(bad.status.code(), Some(2));
+    assert!(
+        stderr(&bad).starts_with("error [invalid_option]: `--set` = \"noise_sd\" is not allowed")
+    );
+}
+
+/// Writes a fixture case as CSV: subject, time, response and covariate columns; NaN as a blank
+/// cell, infinities as `inf`/`-inf`, a missing id as a blank cell.
+fn case_csv(case: &Value) -> String {
+    let cell = |v: &Value| match v {
+        Value::Null => String::new(),
+        Value::String(s) if s == "nan" => String::new(),
+        Value::String(s) => s.clone(),
+        other => other.to_string(),
+    };
+    let covs: Vec<(&String, &Vec<Value>)> = case
+        .get("covariates")
+        .and_then(Value::as_object)
+        .map(|m| m.iter().map(|(k, v)| (k, v.as_array().unwrap())).collect())
+        .unwrap_or_default();
+    let mut s = String::from("id,t,y");
+    for (name, _) in &covs {
+        s += &format!(",{name}");
+    }
+    s.push('\n');
+    for i in 0..case["subject"].as_array().unwrap().len() {
+        s += &format!(
+            "{},{},{}",
+            cell(&case["subject"][i]),
+            cell(&case["time"][i]),
+            cell(&case["response"][i])
+        );
+        for (_, v) in &covs {
+            s += &format!(",{}", cell(&v[i]));
+        }
+        s.push('\n');
+    }
+    s
+}
+
+#[test]
+fn bad_input_fixture_through_csv() {
+    let fixture: Value =
+        serde_json::from_str(include_str!("../../tests/fixtures/bad_input.json")).unwrap();
+    // Not expressible as a CSV file: unequal column lengths (a ragged CSV row is a CSV error,
+    // tested below) and a fractional id (a CSV id that is not a whole number is a text id).
+    let skip = ["length_mismatch", "invalid_value"];
+    let mut checked = 0;
+    for case in fixture["panel_cases"].as_array().unwrap() {
+        let (name, kind) = (
+            case["name"].as_str().unwrap(),
+            case["kind"].as_str().unwrap(),
+        );
+        if skip.contains(&kind) {
+            continue;
+        }
+        let path = temp_csv(&format!("case{checked}.csv"), &case_csv(case));
+        let p = path.to_str().unwrap();
+        let missing = case
+            .get("missing")
+            .and_then(Value::as_str)
+            .unwrap_or("error");
+        let mut args = vec![
+            "describe",
+            p,
+            "--subject",
+            "id",
+            "--time",
+            "t",
+            "--response",
+            "y",
+        ];
+        args.extend(["--missing", missing, "--format", "json"]);
+        if let Some(m) = case.get("covariates").and_then(Value::as_object) {
+            for name in m.keys() {
+                args.extend(["--covariate", name.as_str()]);
+            }
+        }
+        let o = trajweave(&args);
+        assert_eq!(o.status.code(), Some(2), "{name}");
+        let err = stderr(&o);
+        let message = case["message"].as_str().unwrap();
+        assert!(
+            err.starts_with(&format!("error [{kind}]: ")),
+            "{name}: {err}"
+        );
+        assert!(err.ends_with(message), "{name}: {err}");
+        if let Some(row) = message.split("at row ").nth(1) {
+            // The file line is the row plus one for the header.
+            let row: u64 = row
+                .split(|c: char| !c.is_ascii_digit())
+                .next()
+                .unwrap()
+                .parse()
+                .unwrap();
+            assert!(
+                err.contains(&format!("{p} line {}, column `", row + 1)),
+                "{name}: {err}"
+            );
+        }
+        checked += 1;
+    }
+    assert!(checked >= 11, "only {checked} cases checked");
+    for case in fixture["describe_cases"].as_array().unwrap() {
+        let path = temp_csv("one.csv", "id,t,y\n1,0,1\n");
+        let mut args: Vec<String> = [
+            "describe",
+            path.to_str().unwrap(),
+            "--subject",
+            "id",
+            "--time",
+            "t",
+            "--response",
+            "y",
+        ]
+        .iter()
+        .map(|s| s.to_string())
+        .collect();
+        for (key, value) in case["grid"].as_object().unwrap() {
+            args.push(format!("--{key}"));
+            args.push(match value {
+                Value::Array(v) => v.iter().map(Value::to_string).collect::<Vec<_>>().join(","),
+                other => other.to_string(),
+            });
+        }
+        let args: Vec<&str> = args.iter().map(String::as_str).collect();
+        let o = trajweave(&args);
+        let expected = format!(
+            "error [{}]: {}",
+            case["kind"].as_str().unwrap(),
+            case["message"].as_str().unwrap()
+        );
+        assert_eq!(stderr(&o), expected, "{}", case["name"]);
+    }
+    for case in fixture["simulate_cases"].as_array().unwrap() {
+        let mut args = vec!["simulate".to_string(), "--out".into(), "-".into()];
+        for (key, value) in case["options"].as_object().unwrap() {
+            args.push("--set".into());
+            args.push(format!("{key}={value}"));
+        }
+        let args: Vec<&str> = args.iter().map(String::as_str).collect();
+        let o = trajweave(&args);
+        let expected = format!(
+            "error [{}]: {}",
+            case["kind"].as_str().unwrap(),
+            case["message"].as_str().unwrap()
+        );
+        assert_eq!(stderr(&o), expected, "{}", case["name"]);
+    }
+}
+
+#[test]
+fn csv_errors_name_line_and_column() {
+    let p = temp_csv("text.csv", "id,t,y\n1,0,1\n1,1,abc\n");
+    let o = trajweave(&[
+        "describe",
+        p.to_str().unwrap(),
+        "--subject",
+        "id",
+        "--time",
+        "t",
+        "--response",
+        "y",
+    ]);
+    assert_eq!(
+        stderr(&o),
+        format!("error [invalid_value]: {} line 3, column `y`: \"abc\" is not a number; use a number, or leave the cell blank (or NA) for a missing value", p.display())
+    );
+    let p = temp_csv("ragged.csv", "id,t,y\n1,0,1\n1,1\n");
+    let o = trajweave(&[
+        "describe",
+        p.to_str().unwrap(),
+        "--subject",
+        "id",
+        "--time",
+        "t",
+        "--response",
+        "y",
+    ]);
+    assert_eq!(
+        stderr(&o),
+        format!(
+            "error [csv]: {} line 3: not valid CSV: this row has 2 fields but the header has 3",
+            p.display()
+        )
+    );
+    let o = trajweave(&[
+        "describe",
+        p.to_str().unwrap(),
+        "--subject",
+        "patient",
+        "--time",
+        "t",
+        "--response",
+        "y",
+    ]);
+    assert_eq!(
+        stderr(&o),
+        format!("error [invalid_option]: --subject \"patient\": {} has no such column; its columns are id, t, y", p.display())
+    );
+    let o = trajweave(&[
+        "describe",
+        "/nonexistent/file.csv",
+        "--subject",
+        "id",
+        "--time",
+        "t",
+        "--response",
+        "y",
+    ]);
+    assert!(stderr(&o).starts_with("error [io]: /nonexistent/file.csv: "));
+}
