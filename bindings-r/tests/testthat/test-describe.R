@@ -34,14 +34,29 @@ test_that("ChickWeight: sizes, visits and follow-up match base R", {
   )
 })
 
-test_that("ChickWeight: per-chick visits and patterns match a base-R classification", {
+test_that("ChickWeight: per-chick visits and follow-up match counts of rows", {
   cw <- datasets::ChickWeight
   d <- chick_description()
-  per <- d$grid$per_subject
+  per <- d$per_subject
   expect_s3_class(per, "data.frame")
   # Ids are text: the factor's labels.
   expect_type(per$subject, "character")
   expect_setequal(per$subject, levels(cw$Chick))
+  visits <- table(cw$Chick)
+  got <- setNames(per$visits, per$subject)
+  expect_identical(got[names(visits)], setNames(as.double(visits), names(visits)))
+  first <- tapply(as.double(cw$Time), cw$Chick, min)
+  last <- tapply(as.double(cw$Time), cw$Chick, max)
+  expect_identical(setNames(per$first, per$subject)[names(first)], c(first))
+  expect_identical(setNames(per$last, per$subject)[names(last)], c(last))
+})
+
+test_that("ChickWeight: patterns on the schedule match a base-R classification", {
+  cw <- datasets::ChickWeight
+  d <- chick_description()
+  per <- d$grid$per_subject
+  expect_s3_class(per, "data.frame")
+  expect_type(per$subject, "character")
 
   # Each weighing day is a scheduled day, so every visit is in its own bin and the seen marks
   # count the visits.
