@@ -1,0 +1,159 @@
+"""Cross-language identity: the CLI's JSON, the Python binding and the R package give the same
+describe output and the same simulated panel.
+
+Tolerances: the CLI and Python both serialise the core's result with serde_json, so they must
+match exactly. R's numbers reach this test through jsonlite::toJSON(digits = NA), which prints
+15 significant digits, so R is compared to a relative 1e-12 (round-off of printing only).
+
+ChickWeight (R's base `datasets`; Crowder & Hand 1990) is checked against base R computed
+inside the test: visit counts per chick vs table(ChickWeight$Chick), and the complete /
+monotone / intermittent class of each chick on its 12-day schedule.
+
+Needs the CLI binary (TRAJWEAVE_CLI), the installed R package (R_LIBS) and the Python
+binding; `make cross-test` provides all three.
+"""
+
+import json
+import math
+import os
+import subprocess
+from pathlib import Path
+
+import pandas as pd
+import pytest
+
+import trajweave as tw
+
+ROOT = Path(__file__).resolve().parents[2]
+CLI = os.environ.get("TRAJWEAVE_CLI", str(ROOT / "target" / "release" / "trajweave"))
+RLIB = os.environ.get("R_LIBS", str(ROOT / ".rlib"))
+DEMO = ROOT / "demo-data" / "kidney_registry.csv"
+DEMO_COVARIATES = ["age", "female", "diabetes", "acr"]
+CHICK_DAYS = [0, 2, 4, 6, 8, 10, 12, 14, 16, 18, 20, 21]
+R_REL_TOL = 1e-12
+
+
+def cli(*args):
+    out = subprocess.run([CLI, *map(str, args)], capture_output=True, text=True)
+    assert out.returncode == 0, out.stderr
+    return out.stdout
+
+
+def rscript(code, tmp_path):
+    script = tmp_path / "script.R"
+    script.write_text(f'suppressMessages(library(trajweave, lib.loc = "{RLIB}"))\n' + code)
+    out = subprocess.run(["Rscript", str(script)], capture_output=True, text=True)
+    assert out.returncode == 0, out.stderr
+    return out.stdout
+
+
+def same(a, b, path="", rel=0.0):
+    """Deep comparison; numbers within `rel`; a missing key counts as null (jsonlite leaves
+    NA cells of data.frame rows out)."""
+    if isinstance(a, dict) and isinstance(b, dict):
+        for k in set(a) | set(b):
+            same(a.get(k), b.get(k), f"{path}.{k}", rel)
+    elif isinstance(a, list) and isinstance(b, list):
+        assert len(a) == len(b), f"{path}: lengths {len(a)} vs {len(b)}"
+        for i, (x, y) in enumerate(zip(a, b)):
+            same(x, y, f"{path}[{i}]", rel)
+    elif isinstance(a, (int, float)) and isinstance(b, (int, float)) and not isinstance(a, bool):
+        assert math.isclose(a, b, rel_tol=rel, abs_tol=0.0) or a == b, f"{path}: {a} vs {b}"
+    else:
+        assert a == b, f"{path}: {a!r} vs {b!r}"
+
+
+R_DESCRIBE = """
+d <- describe(p, {grid})
+cat(jsonlite::toJSON(unclass(d), auto_unbox = TRUE, digits = NA, null = "null", na = "null"))
+"""
+
+
+def test_describe_demo_data_three_fronts(tmp_path):
+    edges = list(range(9))
+    cov_flags = [a for c in DEMO_COVARIATES for a in ("--covariate", c)]
+    from_cli = json.loads(cli("describe", DEMO, "--subject", "patient", "--time", "years",
+                              "--response", "egfr", *cov_flags, "--edges", ",".join(map(str, edges)),
+                              "--format", "json"))
+    df = pd.read_csv(DEMO)
+    from_py = tw.Panel.from_frame(df, "patient", "years", "egfr", DEMO_COVARIATES).describe(edges=edges).to_dict()
+    code = (f'df <- read.csv("{DEMO}")\n'
+            'p <- panel_from_frame(df, "patient", "years", "egfr", c("age", "female", "diabetes", "acr"))\n'
+            + R_DESCRIBE.format(grid="edges = 0:8"))
+    from_r = json.loads(rscript(code, tmp_path))
+    same(from_cli, from_py)  # exact
+    same(from_cli, from_r, rel=R_REL_TOL)
+    assert from_cli["subjects"] == 3000
+
+
+def test_describe_chickweight_three_fronts_and_base_r(tmp_path):
+    csv = tmp_path / "chickweight.csv"
+    days = ", ".join(map(str, CHICK_DAYS))
+    code = f"""
+cw <- datasets::ChickWeight
+ids <- as.integer(as.character(cw$Chick))
+write.csv(data.frame(chick = ids, day = cw$Time, weight = cw$weight), "{csv}", row.names = FALSE)
+days <- c({days})
+# Base-R reference: visits per chick, and each chick's class on the 12-day schedule.
+counts <- table(cw$Chick)
+classes <- sapply(split(cw$Time, cw$Chick), function(t) {{
+  seen <- days %in% t
+  k <- sum(seen)
+  if (k == length(days)) "complete" else if (k > 0 && all(seen[seq_len(k)])) "monotone" else "intermittent"
+}})
+p <- panel(ids, cw$Time, cw$weight)
+d <- describe(p, schedule = days, tolerance = 0.4)
+cat(jsonlite::toJSON(list(
+  counts = as.list(setNames(as.integer(counts), names(counts))),
+  classes = as.list(classes),
+  ours = unclass(d)
+), auto_unbox = TRUE, digits = NA, null = "null", na = "null"))
+"""
+    r = json.loads(rscript(code, tmp_path))
+    from_cli = json.loads(cli("describe", csv, "--subject", "chick", "--time", "day", "--response", "weight",
+                              "--schedule", ",".join(map(str, CHICK_DAYS)), "--tolerance", "0.4",
+                              "--format", "json"))
+    df = pd.read_csv(csv)
+    from_py = tw.Panel.from_frame(df, "chick", "day", "weight").describe(schedule=CHICK_DAYS, tolerance=0.4).to_dict()
+    same(from_cli, from_py)
+    same(from_cli, r["ours"], rel=R_REL_TOL)
+
+    visits = {str(s["subject"]): s["visits"] for s in from_cli["per_subject"]}
+    assert visits == r["counts"]  # base R table(ChickWeight$Chick)
+    classes = {str(s["subject"]): s["pattern"] for s in from_cli["grid"]["per_subject"]}
+    assert classes == r["classes"]
+    assert from_cli["subjects"] == 50 and from_cli["observations"] == 578
+    assert set(classes.values()) >= {"complete", "monotone"}
+
+
+def test_simulate_identical_everywhere(tmp_path):
+    n, seed = 200, 99
+    from_cli = pd.read_csv(pd.io.common.StringIO(cli("simulate", "--subjects", n, "--seed", seed)))
+    from_py = tw.simulate(subjects=n, seed=seed)
+    code = f"""
+d <- simulate_panel(subjects = {n}, seed = {seed})
+for (col in names(d)) d[[col]] <- sprintf("%.17g", d[[col]])
+write.csv(d, stdout(), row.names = FALSE, quote = FALSE)
+"""
+    from_r = pd.read_csv(pd.io.common.StringIO(rscript(code, tmp_path)))
+    # Full-precision text (Rust's shortest round trip, R's %.17g) parses back to the same bits.
+    pd.testing.assert_frame_equal(from_cli, from_py, check_dtype=False, rtol=0, atol=0)
+    pd.testing.assert_frame_equal(from_cli, from_r, check_dtype=False, rtol=0, atol=0)
+
+
+def test_same_error_everywhere(tmp_path):
+    # One bad-input case through all three fronts in one place (each suite has them all).
+    bad = tmp_path / "bad.csv"
+    bad.write_text("id,t,y\n1,0,1\n1,,2\n")
+    out = subprocess.run([CLI, "describe", str(bad), "--subject", "id", "--time", "t", "--response", "y"],
+                         capture_output=True, text=True)
+    message = "`time` is not finite at row 2 (value NaN): remove the row or give a finite value"
+    assert out.stderr.strip() == f"error [non_finite]: {bad} line 3, column `t`: {message}"
+    with pytest.raises(tw.NonFiniteError) as e:
+        tw.Panel([1, 1], [0.0, float("nan")], [1.0, 2.0])
+    assert str(e.value) == message
+    code = """
+r <- tryCatch(panel(c(1L, 1L), c(0, NA), c(1, 2)), trajweave_non_finite = function(e) conditionMessage(e))
+cat(r)
+"""
+    assert rscript(code, tmp_path) == message
