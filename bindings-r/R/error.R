@@ -15,5 +15,6 @@ tw_value <- function(answer) {
 
 # An option refused on the R side, worded by the core's error type.
 tw_stop_option <- function(argument, value, allowed) {
-  tw_value(.Call(wrap__tw_invalid_option, argument, value, allowed))
+  if (is.character(value)) value <- enc2utf8(value)
+  tw_value(.Call(wrap__tw_invalid_option, enc2utf8(argument), value, enc2utf8(allowed)))
 }
