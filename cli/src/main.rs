@@ -149,7 +149,7 @@ fn run_simulate(a: &SimulateArgs) -> Result<(), CliError> {
     if a.list {
         let defaults = serde_json::to_value(&o).map_err(|e| CliError::io("json", e.to_string()))?;
         let mut s = String::new();
-        for name in trajweave_core::simulate::SIMULATE_OPTION_NAMES {
+        for name in trajweave_core::SIMULATE_OPTION_NAMES {
             s += &format!("{name:<22} {}\n", defaults[name]);
         }
         return write_out(Path::new("-"), s.as_bytes());

@@ -368,7 +368,7 @@ impl Description {
             let p = &g.patterns;
             let _ = writeln!(
                 s,
-                "\npatterns               complete {}  monotone dropout {}  intermittent {}  unobserved {}",
+                "\npatterns               complete {}  monotone {}  intermittent {}  unobserved {}",
                 p.complete, p.monotone, p.intermittent, p.unobserved
             );
         }
