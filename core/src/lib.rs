@@ -27,4 +27,6 @@ pub use describe::{describe, Description, Pattern};
 pub use error::{Error, Result};
 pub use grid::TimeGrid;
 pub use panel::{Covariate, Missing, Panel, SubjectId, SubjectIds};
-pub use simulate::{simulate, SimulateOptions, SimulatedPanel, SIMULATED_COLUMNS, SIMULATE_OPTION_NAMES};
+pub use simulate::{
+    simulate, SimulateOptions, SimulatedPanel, SIMULATED_COLUMNS, SIMULATE_OPTION_NAMES,
+};
