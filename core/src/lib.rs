@@ -15,6 +15,7 @@
 //! ```
 #![deny(missing_docs)]
 
+pub mod curve;
 pub mod describe;
 pub mod error;
 pub mod grid;
