@@ -148,8 +148,8 @@ impl OptionValue {
     }
 }
 
-/// Checks paired x and y for a smoother: equal lengths, finite values, at least `min_points`
-/// points and at least `min_distinct` distinct x values.
+/// Checks paired x and y for a smoother: equal lengths, finite values, at least `min_distinct`
+/// distinct x values.
 ///
 /// # Errors
 /// [`Error::LengthMismatch`], [`Error::NonFinite`] (row counted from 1), [`Error::TooFew`].
@@ -171,24 +171,73 @@ pub fn check_xy(x: &[f64], y: &[f64], estimate: &str, min_distinct: usize) -> Re
             });
         }
     }
-    let mut sorted = x.to_vec();
-    sorted.sort_unstable_by(f64::total_cmp);
-    sorted.dedup();
-    if sorted.len() < min_distinct {
+    // Stop as soon as enough distinct values are seen: O(n min_distinct) at worst, and
+    // min_distinct is a small constant.
+    let mut seen: Vec<f64> = Vec::with_capacity(min_distinct);
+    for &v in x {
+        if seen.len() >= min_distinct {
+            break;
+        }
+        if !seen.contains(&v) {
+            seen.push(v);
+        }
+    }
+    if seen.len() < min_distinct {
         return Err(Error::TooFew {
             what: "distinct x values".into(),
             estimate: estimate.into(),
             needed: min_distinct,
-            found: sorted.len(),
+            found: seen.len(),
         });
     }
     Ok(())
 }
 
-/// x and y sorted by x (stably, so tied points keep their order), with the permutation.
+/// x and y sorted by x, stably (tied points keep their input order), with the permutation:
+/// `order[k]` is the input index of sorted point `k`. A least-significant-digit radix sort on
+/// the bits of x (11 bits a pass, passes where every key agrees skipped), O(n).
 pub fn sort_by_x(x: &[f64], y: &[f64]) -> (Vec<f64>, Vec<f64>, Vec<usize>) {
-    let mut order: Vec<usize> = (0..x.len()).collect();
-    order.sort_by(|&a, &b| x[a].total_cmp(&x[b]));
+    let n = x.len();
+    // Order-preserving map of finite doubles to integers; -0 and 0 map together.
+    let key = |v: f64| {
+        let b = (v + 0.0).to_bits();
+        if b >> 63 == 1 {
+            !b
+        } else {
+            b | (1 << 63)
+        }
+    };
+    let mut keys: Vec<u64> = x.iter().map(|&v| key(v)).collect();
+    let mut order: Vec<usize> = (0..n).collect();
+    let mut keys_tmp = vec![0u64; n];
+    let mut order_tmp = vec![0usize; n];
+    const BITS: u32 = 11;
+    const MASK: u64 = (1 << BITS) - 1;
+    let mut counts = vec![0usize; 1 << BITS];
+    for pass in 0..64_u32.div_ceil(BITS) {
+        let shift = BITS * pass;
+        counts.iter_mut().for_each(|c| *c = 0);
+        for &k in &keys {
+            counts[((k >> shift) & MASK) as usize] += 1;
+        }
+        if counts.iter().any(|&c| c == n) {
+            continue; // every key has this digit: the pass would change nothing
+        }
+        let mut total = 0;
+        for c in counts.iter_mut() {
+            let here = *c;
+            *c = total;
+            total += here;
+        }
+        for i in 0..n {
+            let d = ((keys[i] >> shift) & MASK) as usize;
+            keys_tmp[counts[d]] = keys[i];
+            order_tmp[counts[d]] = order[i];
+            counts[d] += 1;
+        }
+        std::mem::swap(&mut keys, &mut keys_tmp);
+        std::mem::swap(&mut order, &mut order_tmp);
+    }
     let xs = order.iter().map(|&i| x[i] + 0.0).collect();
     let ys = order.iter().map(|&i| y[i]).collect();
     (xs, ys, order)
@@ -226,6 +275,27 @@ mod tests {
             vec![10.0, 10.0, 15.0, 20.0, 10.0, 0.0, 0.0]
         );
         assert!(c.predict(&[f64::NAN])[0].is_nan());
+    }
+
+    #[test]
+    fn radix_sort_is_a_stable_sort() {
+        // Reference: the standard library's stable sort on the same keys.
+        let mut r = crate::rng::Rng::new(3, 0);
+        let x: Vec<f64> = (0..5000)
+            .map(|i| match i % 4 {
+                0 => (r.uniform() * 20.0 - 10.0).round(),
+                1 => -r.uniform() * 1e-300,
+                2 => r.normal() * 1e6,
+                _ => 0.0 * -1.0,
+            })
+            .collect();
+        let y: Vec<f64> = (0..x.len()).map(|i| i as f64).collect();
+        let mut want: Vec<usize> = (0..x.len()).collect();
+        want.sort_by(|&a, &b| (x[a] + 0.0).partial_cmp(&(x[b] + 0.0)).unwrap());
+        let (xs, ys, order) = sort_by_x(&x, &y);
+        assert_eq!(order, want);
+        assert!(xs.windows(2).all(|w| w[0] <= w[1]));
+        assert_eq!(ys[0], want[0] as f64);
     }
 
     #[test]

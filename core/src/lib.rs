@@ -19,10 +19,14 @@ pub mod curve;
 pub mod describe;
 pub mod error;
 pub mod grid;
+pub mod kernel;
+pub mod mean_curve;
 pub mod panel;
 pub mod quantile;
 pub mod rng;
 pub mod simulate;
+pub mod smoother;
+pub mod tune;
 
 pub use describe::{describe, Description, Pattern};
 pub use error::{Error, Result};

@@ -1,0 +1,95 @@
+//! One type for "a smoother with its settings", so `mean_curve`, `tune_smoother` and the
+//! fronts handle every family the same way. Each family's options and algorithm live in its
+//! own module; this one only dispatches.
+
+use serde::Serialize;
+
+use crate::curve::{Curve, OptionValue};
+use crate::error::{Error, Result};
+use crate::kernel::{kernel_smooth, KernelOptions};
+
+/// A smoother family with its settings.
+///
+/// # Examples
+/// ```
+/// use trajweave_core::curve::OptionValue;
+/// use trajweave_core::smoother::Smoother;
+/// # fn main() -> trajweave_core::Result<()> {
+/// let s = Smoother::from_options("kernel", &[("bandwidth".into(), OptionValue::Number(0.5))])?;
+/// let c = s.fit(&[0.0, 1.0, 2.0, 3.0], &[1.0, 2.0, 3.0, 4.0])?;
+/// assert_eq!(c.method, "kernel");
+/// # Ok(()) }
+/// ```
+#[derive(Debug, Clone, PartialEq, Serialize)]
+#[serde(tag = "family", content = "options", rename_all = "lowercase")]
+#[non_exhaustive]
+pub enum Smoother {
+    /// Nadaraya-Watson or local-linear kernel smoother.
+    Kernel(KernelOptions),
+}
+
+/// The family names, as every front spells them.
+pub const FAMILIES: &str = "\"lowess\", \"kernel\", \"spline\" or \"super\"";
+
+impl Smoother {
+    /// A smoother of `family` with the defaults of that family.
+    ///
+    /// # Errors
+    /// [`Error::InvalidOption`] for an unknown family.
+    pub fn new(family: &str) -> Result<Smoother> {
+        match family {
+            "kernel" => Ok(Smoother::Kernel(KernelOptions::default())),
+            other => Err(Error::option(
+                "smoother",
+                format!("{other:?}"),
+                &format!("use {FAMILIES}"),
+            )),
+        }
+    }
+
+    /// A smoother of `family` with options set by name, in order.
+    ///
+    /// # Errors
+    /// Those of [`Smoother::new`] and of the family's `set`.
+    pub fn from_options(family: &str, options: &[(String, OptionValue)]) -> Result<Smoother> {
+        let mut s = Smoother::new(family)?;
+        for (name, value) in options {
+            s.set(name, value)?;
+        }
+        Ok(s)
+    }
+
+    /// Sets one option by name.
+    ///
+    /// # Errors
+    /// [`Error::InvalidOption`] for an unknown name or a value out of range.
+    pub fn set(&mut self, name: &str, value: &OptionValue) -> Result<()> {
+        match self {
+            Smoother::Kernel(o) => o.set(name, value),
+        }
+    }
+
+    /// The family's name.
+    pub fn family(&self) -> &'static str {
+        match self {
+            Smoother::Kernel(_) => "kernel",
+        }
+    }
+
+    /// The parameter `tune_smoother` varies by default.
+    pub fn main_parameter(&self) -> &'static str {
+        match self {
+            Smoother::Kernel(_) => "bandwidth",
+        }
+    }
+
+    /// Fits y on x.
+    ///
+    /// # Errors
+    /// Those of the family's fit function.
+    pub fn fit(&self, x: &[f64], y: &[f64]) -> Result<Curve> {
+        match self {
+            Smoother::Kernel(o) => kernel_smooth(x, y, o),
+        }
+    }
+}
