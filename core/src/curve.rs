@@ -220,7 +220,7 @@ pub fn sort_by_x(x: &[f64], y: &[f64]) -> (Vec<f64>, Vec<f64>, Vec<usize>) {
         for &k in &keys {
             counts[((k >> shift) & MASK) as usize] += 1;
         }
-        if counts.iter().any(|&c| c == n) {
+        if counts.contains(&n) {
             continue; // every key has this digit: the pass would change nothing
         }
         let mut total = 0;
@@ -286,7 +286,7 @@ mod tests {
                 0 => (r.uniform() * 20.0 - 10.0).round(),
                 1 => -r.uniform() * 1e-300,
                 2 => r.normal() * 1e6,
-                _ => 0.0 * -1.0,
+                _ => -0.0,
             })
             .collect();
         let y: Vec<f64> = (0..x.len()).map(|i| i as f64).collect();
