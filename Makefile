@@ -45,7 +45,7 @@ python: setup
 		maturin develop --release --quiet
 
 python-test: python
-	$(PY) -m pytest -q tests/python
+	$(PY) -m pytest -q tests/python --doctest-modules bindings-python/python/trajweave
 
 r: setup
 	mkdir -p $(RLIB)
@@ -65,6 +65,7 @@ demo-data-check: cli
 
 fixtures-check: setup
 	$(PY) tests/reference/describe_reference.py --check
+	$(PY) tests/reference/kernel_py.py --check
 
 clean:
 	cargo clean

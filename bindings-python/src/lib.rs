@@ -5,8 +5,11 @@ use pyo3::prelude::*;
 
 mod describe;
 mod errors;
+mod mean_curve;
 mod panel;
 mod simulate;
+mod smoother;
+mod tune;
 
 #[pymodule]
 fn _trajweave(m: &Bound<'_, PyModule>) -> PyResult<()> {
@@ -14,5 +17,10 @@ fn _trajweave(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(describe::describe_panel, m)?)?;
     m.add_function(wrap_pyfunction!(simulate::simulate_columns, m)?)?;
     m.add_function(wrap_pyfunction!(simulate::simulated_columns, m)?)?;
+    m.add_function(wrap_pyfunction!(smoother::fit_smoother, m)?)?;
+    m.add_function(wrap_pyfunction!(smoother::predict_curve, m)?)?;
+    m.add_function(wrap_pyfunction!(smoother::smoother_settings, m)?)?;
+    m.add_function(wrap_pyfunction!(mean_curve::panel_mean_curve, m)?)?;
+    m.add_function(wrap_pyfunction!(tune::panel_tune_smoother, m)?)?;
     Ok(())
 }

@@ -20,12 +20,38 @@ from .errors import (
 )
 from .panel import Panel
 from .simulate import simulate
+from .smoothers import (
+    Curve,
+    Kernel,
+    Lowess,
+    Spline,
+    SuperSmoother,
+    kernel_smooth,
+    lowess,
+    smoothing_spline,
+    super_smoother,
+)
+from .trend import Bootstrap, MeanCurve, Tuning, mean_curve, tune_smoother
 
 __all__ = [
     "Panel",
     "describe",
     "Description",
     "simulate",
+    "Curve",
+    "Lowess",
+    "Kernel",
+    "Spline",
+    "SuperSmoother",
+    "lowess",
+    "kernel_smooth",
+    "smoothing_spline",
+    "super_smoother",
+    "Bootstrap",
+    "MeanCurve",
+    "mean_curve",
+    "Tuning",
+    "tune_smoother",
     "TrajweaveError",
     "LengthMismatchError",
     "NonFiniteError",

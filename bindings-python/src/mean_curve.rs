@@ -1,0 +1,78 @@
+//! `mean_curve`: the panel's mean trend with an optional subject-bootstrap band.
+
+use numpy::IntoPyArray;
+use numpy::PyReadonlyArray1;
+use pyo3::prelude::*;
+use pyo3::types::PyDict;
+use trajweave_core::mean_curve::{mean_curve, BootstrapOptions};
+
+use crate::errors::IntoPy;
+use crate::panel::NativePanel;
+use crate::smoother::{build, curve_parts, vec, RawOption};
+
+/// Returns a dict: curve (parts), at, fitted, and band (lower, upper, failed) or None.
+#[pyfunction]
+#[pyo3(signature = (panel, family, options, at=None, bootstrap=None))]
+pub fn panel_mean_curve<'py>(
+    py: Python<'py>,
+    panel: &NativePanel,
+    family: &str,
+    options: Vec<(String, RawOption)>,
+    at: Option<PyReadonlyArray1<'_, f64>>,
+    bootstrap: Option<(f64, f64, f64)>,
+) -> PyResult<Bound<'py, PyDict>> {
+    let s = build(family, options)?;
+    let at = at.map(|a| vec(&a));
+    let boot = bootstrap
+        .map(|(reps, level, seed)| bootstrap_options(reps, level, seed))
+        .transpose()?;
+    let m = py
+        .detach(|| mean_curve(&panel.inner, &s, at.as_deref(), boot.as_ref()))
+        .py_err()?;
+    let out = PyDict::new(py);
+    out.set_item("curve", curve_parts(py, m.curve)?)?;
+    out.set_item("at", m.at.into_pyarray(py))?;
+    out.set_item("fitted", m.fitted.into_pyarray(py))?;
+    match m.band {
+        Some(b) => {
+            let band = PyDict::new(py);
+            band.set_item("lower", b.lower.into_pyarray(py))?;
+            band.set_item("upper", b.upper.into_pyarray(py))?;
+            band.set_item("reps", b.bootstrap.reps)?;
+            band.set_item("level", b.bootstrap.level)?;
+            band.set_item("seed", b.bootstrap.seed)?;
+            band.set_item("failed", b.failed)?;
+            out.set_item("band", band)?;
+        }
+        None => out.set_item("band", py.None())?,
+    }
+    Ok(out)
+}
+
+/// Bootstrap settings from numbers, with the core's range checks; whole numbers are checked
+/// here because Python passes floats.
+fn bootstrap_options(reps: f64, level: f64, seed: f64) -> PyResult<BootstrapOptions> {
+    let whole = |name: &str, v: f64, max: f64, allowed: &str| -> PyResult<u64> {
+        if v.fract() == 0.0 && (0.0..=max).contains(&v) {
+            Ok(v as u64)
+        } else {
+            Err(crate::errors::to_py(trajweave_core::Error::InvalidOption {
+                argument: name.into(),
+                value: format!("{v}"),
+                allowed: allowed.into(),
+            }))
+        }
+    };
+    let o = BootstrapOptions {
+        reps: whole("reps", reps, 1e9, "a whole number from 10 to 100000")? as usize,
+        level,
+        seed: whole(
+            "seed",
+            seed,
+            9_007_199_254_740_991.0,
+            "a whole number from 0 to 2^53 - 1",
+        )?,
+    };
+    o.validate().py_err()?;
+    Ok(o)
+}
