@@ -1,6 +1,7 @@
 //! The `trajweave` command: explore longitudinal data held in CSV files.
 
 mod error;
+mod smooth;
 mod table;
 
 use std::io::Write;
@@ -30,10 +31,14 @@ enum Command {
     Describe(DescribeArgs),
     /// Write a simulated panel (the invented kidney-registry scenario) as CSV.
     Simulate(SimulateArgs),
+    /// The mean curve of response on time, with an optional subject-bootstrap band.
+    Smooth(smooth::SmoothArgs),
+    /// Choose the amount of smoothing by cross-validation over subjects.
+    Tune(smooth::TuneArgs),
 }
 
 #[derive(Args)]
-struct PanelArgs {
+pub struct PanelArgs {
     /// CSV file with a header row.
     file: PathBuf,
     /// Column holding subject ids (whole numbers or text).
@@ -54,7 +59,7 @@ struct PanelArgs {
 }
 
 impl PanelArgs {
-    fn read(&self) -> Result<trajweave_core::Panel, CliError> {
+    pub fn read(&self) -> Result<trajweave_core::Panel, CliError> {
         let missing: Missing = self.missing.parse()?;
         let cols = Columns {
             subject: &self.subject,
@@ -67,7 +72,7 @@ impl PanelArgs {
 }
 
 #[derive(Clone, Copy, ValueEnum)]
-enum Format {
+pub enum Format {
     Table,
     Json,
 }
@@ -117,6 +122,8 @@ fn main() -> ExitCode {
     let result = match cli.command {
         Command::Describe(a) => run_describe(&a),
         Command::Simulate(a) => run_simulate(&a),
+        Command::Smooth(a) => smooth::run_smooth(&a),
+        Command::Tune(a) => smooth::run_tune(&a),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,
@@ -138,7 +145,7 @@ fn run_describe(a: &DescribeArgs) -> Result<(), CliError> {
     write_out(Path::new("-"), text.as_bytes())
 }
 
-fn json<T: serde::Serialize>(value: &T) -> Result<String, CliError> {
+pub fn json<T: serde::Serialize>(value: &T) -> Result<String, CliError> {
     serde_json::to_string_pretty(value)
         .map(|s| s + "\n")
         .map_err(|e| CliError::io("json", e.to_string()))
@@ -193,7 +200,7 @@ fn simulated_csv(d: &SimulatedPanel, digits: Option<usize>) -> String {
     s
 }
 
-fn write_out(path: &Path, bytes: &[u8]) -> Result<(), CliError> {
+pub fn write_out(path: &Path, bytes: &[u8]) -> Result<(), CliError> {
     let name = path.display().to_string();
     let result = if name == "-" {
         std::io::stdout().lock().write_all(bytes)

@@ -314,3 +314,68 @@ fn csv_errors_name_line_and_column() {
     ]);
     assert!(stderr(&o).starts_with("error [io]: /nonexistent/file.csv: "));
 }
+
+#[test]
+fn smooth_and_tune_kernel() {
+    let mut csv = String::from("id,t,y\n");
+    for s in 0..6 {
+        for k in 0..5 {
+            csv += &format!("{s},{k},{}\n", (k as f64) * 0.5 + s as f64);
+        }
+    }
+    let path = temp_csv("smooth.csv", &csv);
+    let p = path.to_str().unwrap();
+    let base = ["--subject", "id", "--time", "t", "--response", "y"];
+    let mut args = vec!["smooth", p];
+    args.extend(base);
+    args.extend(["--method", "kernel", "--bandwidth", "0.8", "--at", "0,2,4"]);
+    let o = trajweave(&args);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let text = String::from_utf8(o.stdout).unwrap();
+    let rows: Vec<&str> = text.lines().collect();
+    assert_eq!(rows[0], "time,fitted");
+    // Every subject is a line of slope 0.5 with intercepts 0..5 (mean 2.5): a local-linear fit
+    // of the pooled data is exactly the mean line 2.5 + 0.5 t (closed form).
+    for (row, t) in rows[1..].iter().zip([0.0, 2.0, 4.0]) {
+        let fitted: f64 = row.split(',').nth(1).unwrap().parse().unwrap();
+        assert!((fitted - (2.5 + 0.5 * t)).abs() < 1e-9, "{row}");
+    }
+    let mut args = vec!["smooth", p];
+    args.extend(base);
+    args.extend([
+        "--method",
+        "kernel",
+        "--bootstrap",
+        "20",
+        "--format",
+        "json",
+    ]);
+    let o = trajweave(&args);
+    let m: Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(m["band"]["lower"].as_array().unwrap().len(), 101);
+    let mut args = vec!["tune", p];
+    args.extend(base);
+    args.extend([
+        "--method",
+        "kernel",
+        "--candidates",
+        "0.5,1,2",
+        "--format",
+        "json",
+    ]);
+    let o = trajweave(&args);
+    let t: Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(t["scheme"], "leave-one-subject-out");
+    assert_eq!(t["scores"].as_array().unwrap().len(), 3);
+    // Options a family does not take are refused by the core, naming the allowed ones.
+    let mut args = vec!["smooth", p];
+    args.extend(base);
+    args.extend(["--method", "kernel", "--df", "4"]);
+    let o = trajweave(&args);
+    assert!(stderr(&o).starts_with("error [invalid_option]: `kernel option` = \"df\" is not allowed: use one of: bandwidth"), "{}", stderr(&o));
+    let mut args = vec!["smooth", p];
+    args.extend(base);
+    args.extend(["--method", "cubic"]);
+    let o = trajweave(&args);
+    assert_eq!(stderr(&o), "error [invalid_option]: `smoother` = \"cubic\" is not allowed: use \"lowess\", \"kernel\", \"spline\" or \"super\"");
+}
