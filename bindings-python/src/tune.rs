@@ -7,6 +7,8 @@ use crate::errors::IntoPy;
 use crate::panel::NativePanel;
 use crate::smoother::{build, json_err, RawOption};
 
+// The Python signature mirrors the core function's arguments one for one.
+#[allow(clippy::too_many_arguments)]
 #[pyfunction]
 #[pyo3(signature = (panel, family, options, candidates, parameter=None, folds=None, seed=1))]
 pub fn panel_tune_smoother(
