@@ -17,7 +17,7 @@ export PYO3_PYTHON := $(PY)
 export TRAJWEAVE_CLI := $(CURDIR)/$(CLI)
 export R_LIBS := $(RLIB)
 
-.PHONY: demo cli test setup lint rust-test python python-test r r-test cross-test \
+.PHONY: demo cli test setup lint bench rust-test python python-test r r-test cross-test \
 	demo-data demo-data-check fixtures-check clean
 
 demo: cli
@@ -66,6 +66,11 @@ demo-data-check: cli
 fixtures-check: setup
 	$(PY) tests/reference/describe_reference.py --check
 	$(PY) tests/reference/kernel_py.py --check
+
+# Speed: criterion per smoother, then ours vs the reference libraries side by side.
+bench: cli python r
+	cargo bench -p trajweave-core --bench smoothers
+	$(PY) scripts/bench_compare.py
 
 clean:
 	cargo clean
