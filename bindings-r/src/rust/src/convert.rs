@@ -5,6 +5,7 @@
 //! panic.
 
 use extendr_api::prelude::*;
+use trajweave_core::curve::OptionValue;
 
 use crate::error::{invalid_option, Failure};
 
@@ -129,6 +130,22 @@ pub fn list_values(x: &Robj, argument: &str) -> Result<Vec<Robj>, Failure> {
     Ok(list.values().collect())
 }
 
+/// The (name, value) pairs of a list; an element without a name has name "".
+pub fn named_fields(x: &Robj, argument: &str) -> Result<Vec<(String, Robj)>, Failure> {
+    let list = x
+        .as_list()
+        .ok_or_else(|| invalid_option(argument, value_text(x), "give a list"))?;
+    Ok(list.iter().map(|(k, v)| (k.to_string(), v)).collect())
+}
+
+/// The value named `name` among `fields`, `NULL` when there is none (as R's `$` answers).
+pub fn field(fields: &[(String, Robj)], name: &str) -> Robj {
+    fields
+        .iter()
+        .find(|(k, _)| k == name)
+        .map_or_else(|| ().into(), |(_, v)| v.clone())
+}
+
 /// A named list.
 pub fn named_list<'a>(
     names: impl ExactSizeIterator<Item = &'a str>,
@@ -156,4 +173,90 @@ pub fn data_frame<'a>(
         )?,
     };
     Ok(df)
+}
+
+/// A length-one numeric or integer vector without a class, as its number; `None` for anything
+/// else and for `NA` (a NaN that is not `NA` passes, for the core to refuse in its words).
+fn scalar_number(x: &Robj) -> Option<f64> {
+    if x.len() != 1 || x.class().is_some() {
+        return None;
+    }
+    match x.rtype() {
+        Rtype::Doubles => x
+            .as_real_slice()?
+            .first()
+            .copied()
+            .filter(|v| !Rfloat::from(*v).is_na()),
+        Rtype::Integers => x
+            .as_integer_slice()?
+            .first()
+            .filter(|&&i| i != i32::MIN)
+            .map(|&i| f64::from(i)),
+        _ => None,
+    }
+}
+
+/// A length-one character vector without a class, as its text; `None` for anything else and
+/// for `NA`.
+fn scalar_text(x: &Robj) -> Option<String> {
+    if x.len() != 1 || x.class().is_some() || x.rtype() != Rtype::Strings {
+        return None;
+    }
+    let s = Strings::try_from(x.clone()).ok()?.elt(0);
+    if s.is_na() {
+        None
+    } else {
+        Some(<&str>::from(&s).to_string())
+    }
+}
+
+/// One number (a length-one double or integer vector, not `NA`).
+pub fn one_number(x: &Robj, argument: &str) -> Result<f64, Failure> {
+    scalar_number(x).ok_or_else(|| invalid_option(argument, value_text(x), "give one number"))
+}
+
+/// A whole number in `0..=max` from one number, or the error worded with `allowed`.
+pub fn whole_number(x: &Robj, argument: &str, max: f64, allowed: &str) -> Result<u64, Failure> {
+    let v = one_number(x, argument)?;
+    if v.fract() == 0.0 && (0.0..=max).contains(&v) {
+        Ok(v as u64)
+    } else {
+        Err(invalid_option(argument, value_text(x), allowed))
+    }
+}
+
+/// `NULL` as `None`, otherwise exactly one text (not `NA`).
+pub fn optional_text(x: &Robj, argument: &str, allowed: &str) -> Result<Option<String>, Failure> {
+    if x.is_null() {
+        return Ok(None);
+    }
+    scalar_text(x)
+        .map(Some)
+        .ok_or_else(|| invalid_option(argument, value_text(x), allowed))
+}
+
+/// A smoother option value as the core takes it: one number or one text; anything else
+/// (a vector of another length, `NA`, a logical, an object with a class) is refused naming the
+/// option.
+pub fn option_value(x: &Robj, name: &str) -> Result<OptionValue, Failure> {
+    if let Some(v) = scalar_number(x) {
+        return Ok(OptionValue::Number(v));
+    }
+    if let Some(s) = scalar_text(x) {
+        return Ok(OptionValue::Text(s));
+    }
+    Err(invalid_option(
+        name,
+        value_text(x),
+        "give one number or one string",
+    ))
+}
+
+/// Doubles with R's `NA` where the core has NaN (a value it could not compute).
+pub fn reals_na(values: &[f64]) -> Robj {
+    values
+        .iter()
+        .map(|&v| if v.is_nan() { f64::na() } else { v })
+        .collect::<Vec<f64>>()
+        .into()
 }

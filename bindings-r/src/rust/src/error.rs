@@ -81,6 +81,13 @@ fn tw_invalid_option(argument: &str, value: Robj, allowed: &str) -> Robj {
     )))
 }
 
+/// The error answer for an option refused for how it combines with others; `value` is shown
+/// as given (for example "given together with `df`").
+#[extendr]
+fn tw_invalid_option_text(argument: &str, value: &str, allowed: &str) -> Robj {
+    respond(Err(invalid_option(argument, value.to_string(), allowed)))
+}
+
 /// The error answer for a value the R wrapper found unusable at a row (counted from 1).
 #[extendr]
 fn tw_invalid_value(argument: &str, row: f64, value: &str, expected: &str) -> Robj {
@@ -95,5 +102,6 @@ fn tw_invalid_value(argument: &str, row: f64, value: &str, expected: &str) -> Ro
 extendr_module! {
     mod error;
     fn tw_invalid_option;
+    fn tw_invalid_option_text;
     fn tw_invalid_value;
 }

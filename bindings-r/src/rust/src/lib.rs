@@ -5,8 +5,9 @@
 //! returns `list(ok = value)` or `list(error_kind = kind, message = text)` (see [`error`]), and
 //! the R wrapper raises the classed condition. A core error therefore never unwinds through R.
 //!
-//! Files mirror the core's modules: `panel.rs`, `describe.rs`, `simulate.rs`, `error.rs`;
-//! `convert.rs` and `json.rs` hold the R value conversions they share.
+//! Files mirror the core's modules: `panel.rs`, `describe.rs`, `simulate.rs`, `smoother.rs`
+//! (with the curve's `predict`), `mean_curve.rs`, `tune.rs`, `error.rs`; `convert.rs` and
+//! `json.rs` hold the R value conversions they share.
 
 use extendr_api::prelude::*;
 
@@ -14,8 +15,11 @@ mod convert;
 mod describe;
 mod error;
 mod json;
+mod mean_curve;
 mod panel;
 mod simulate;
+mod smoother;
+mod tune;
 
 extendr_module! {
     mod trajweave;
@@ -23,4 +27,7 @@ extendr_module! {
     use panel;
     use describe;
     use simulate;
+    use smoother;
+    use mean_curve;
+    use tune;
 }
