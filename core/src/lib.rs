@@ -19,6 +19,7 @@ pub mod curve;
 pub mod describe;
 pub mod error;
 pub mod grid;
+pub mod lowess;
 pub mod panel;
 pub mod quantile;
 pub mod rng;
