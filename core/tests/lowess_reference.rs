@@ -299,10 +299,19 @@ fn affine_change_of_y_carries_through() {
 #[test]
 #[ignore = "timing printout for the release build, not a test of speed"]
 fn timing_printout() {
-    for n in [100_000usize, 1_000_000, 10_000_000] {
+    let sizes: Vec<usize> = match std::env::var("LOWESS_N") {
+        Ok(v) => v.split(',').filter_map(|s| s.parse().ok()).collect(),
+        Err(_) => vec![100_000, 1_000_000, 10_000_000],
+    };
+    for n in sizes {
         let mut g = SplitMix(42);
         let x: Vec<f64> = (0..n).map(|_| 10.0 * g.unit()).collect();
         let y: Vec<f64> = x.iter().map(|v| v.sin() + 0.3 * (g.unit() - 0.5)).collect();
+        if let Ok(dir) = std::env::var("LOWESS_DUMP") {
+            // x then y as little-endian f64, for timing R's lowess on the same data.
+            let bytes: Vec<u8> = x.iter().chain(&y).flat_map(|v| v.to_le_bytes()).collect();
+            std::fs::write(format!("{dir}/lowess_{n}.bin"), bytes).unwrap();
+        }
         let t = std::time::Instant::now();
         let c = lowess(&x, &y, &LowessOptions::default()).unwrap();
         println!(
