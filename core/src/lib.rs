@@ -20,6 +20,7 @@ pub mod describe;
 pub mod error;
 pub mod grid;
 pub mod kernel;
+pub mod lowess;
 pub mod mean_curve;
 pub mod panel;
 pub mod quantile;
