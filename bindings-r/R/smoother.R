@@ -106,7 +106,7 @@ predict.trajweave_curve <- function(object, newdata = object$x, ...) {
 
 print.trajweave_curve <- function(x, ...) {
   d <- x$diagnostics
-  parts <- paste0("n = ", format(d$n))
+  parts <- paste0("n = ", format(d$n, scientific = FALSE))
   for (name in c("df", "bandwidth", "span")) {
     if (!is.null(d[[name]])) parts <- c(parts, paste0(name, " = ", format(d[[name]], digits = 4)))
   }

@@ -4,6 +4,17 @@
 # (1 - h) a + h b, the core as a + h (b - a). Counts are compared exactly.
 TOL_QUANTILE <- 1e-12
 
+# Smoothers against base R, relative to sd(y). Kernel and LOWESS sums are the same finite sums
+# in another order; the spline's df is matched by root finding (to 1e-9 in df) on each side
+# and the super smoother's span choice involves many running fits, so those two are looser.
+TOL_KERNEL <- 1e-10 # direct lm() fits; stats::ksmooth
+TOL_LOWESS <- 1e-10 # stats::lowess
+TOL_SPLINE <- 1e-6 # stats::smooth.spline at the df it reached
+TOL_SUPER <- 1e-6 # stats::supsmu
+# Cross-validation scores recomputed in R from fit_smoother() and predict(): the same fits in
+# another order of summation.
+TOL_TUNE <- 1e-12
+
 # The directory of the cross-language fixtures: $TRAJWEAVE_FIXTURES if set, else the
 # tests/fixtures found by walking up from the test directory; NULL when neither exists (an
 # installed package checked outside the repository).
@@ -64,4 +75,21 @@ expect_tw_error <- function(expr, kind, message, info = NULL) {
     info = paste0(info, ": got ", conditionMessage(err))
   )
   invisible(err)
+}
+
+# Skips a test of a smoother family the core does not have yet, recognised by the core's own
+# refusal of an unknown family (any other error fails the test as usual).
+skip_unless_family <- function(family) {
+  unknown <- paste0(
+    "`smoother` = \"", family, "\" is not allowed: ",
+    "use \"lowess\", \"kernel\", \"spline\" or \"super\""
+  )
+  known <- tryCatch(
+    {
+      trajweave:::new_smoother(family, list())
+      TRUE
+    },
+    trajweave_invalid_option = function(e) !identical(conditionMessage(e), unknown)
+  )
+  if (!known) skip(paste0("the core has no \"", family, "\" smoother yet"))
 }
