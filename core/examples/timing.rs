@@ -12,9 +12,11 @@ fn main() {
     let mut r = Rng::new(1, 0);
     let x: Vec<f64> = (0..n).map(|_| 10.0 * r.uniform()).collect();
     let y: Vec<f64> = x.iter().map(|&v| v.sin() + 0.3 * r.normal()).collect();
-    let t = Instant::now();
-    let s = sort_by_x(&x, &y);
-    println!("sort {:?} ({})", t.elapsed(), s.0.len());
+    for _ in 0..3 {
+        let t = Instant::now();
+        let s = sort_by_x(&x, &y);
+        println!("sort {:?} ({})", t.elapsed(), s.0.len());
+    }
     for shape in [KernelShape::Box, KernelShape::Gaussian] {
         let o = KernelOptions {
             bandwidth: Some(0.1),

@@ -193,54 +193,16 @@ pub fn check_xy(x: &[f64], y: &[f64], estimate: &str, min_distinct: usize) -> Re
     Ok(())
 }
 
-/// x and y sorted by x, stably (tied points keep their input order), with the permutation:
-/// `order[k]` is the input index of sorted point `k`. A least-significant-digit radix sort on
-/// the bits of x (11 bits a pass, passes where every key agrees skipped), O(n).
-pub fn sort_by_x(x: &[f64], y: &[f64]) -> (Vec<f64>, Vec<f64>, Vec<usize>) {
-    let n = x.len();
-    // Order-preserving map of finite doubles to integers; -0 and 0 map together.
-    let key = |v: f64| {
-        let b = (v + 0.0).to_bits();
-        if b >> 63 == 1 {
-            !b
-        } else {
-            b | (1 << 63)
-        }
-    };
-    let mut keys: Vec<u64> = x.iter().map(|&v| key(v)).collect();
-    let mut order: Vec<usize> = (0..n).collect();
-    let mut keys_tmp = vec![0u64; n];
-    let mut order_tmp = vec![0usize; n];
-    const BITS: u32 = 11;
-    const MASK: u64 = (1 << BITS) - 1;
-    let mut counts = vec![0usize; 1 << BITS];
-    for pass in 0..64_u32.div_ceil(BITS) {
-        let shift = BITS * pass;
-        counts.iter_mut().for_each(|c| *c = 0);
-        for &k in &keys {
-            counts[((k >> shift) & MASK) as usize] += 1;
-        }
-        if counts.contains(&n) {
-            continue; // every key has this digit: the pass would change nothing
-        }
-        let mut total = 0;
-        for c in counts.iter_mut() {
-            let here = *c;
-            *c = total;
-            total += here;
-        }
-        for i in 0..n {
-            let d = ((keys[i] >> shift) & MASK) as usize;
-            keys_tmp[counts[d]] = keys[i];
-            order_tmp[counts[d]] = order[i];
-            counts[d] += 1;
-        }
-        std::mem::swap(&mut keys, &mut keys_tmp);
-        std::mem::swap(&mut order, &mut order_tmp);
+/// The points sorted by x, tied x in y order: a total order of the pairs, so the result (and
+/// every sum a smoother forms over it) does not depend on the input's row order. -0 is
+/// stored as 0. Already-sorted input is detected and not sorted again.
+pub fn sort_by_x(x: &[f64], y: &[f64]) -> (Vec<f64>, Vec<f64>) {
+    let order = |a: &(f64, f64), b: &(f64, f64)| a.0.total_cmp(&b.0).then(a.1.total_cmp(&b.1));
+    let mut pairs: Vec<(f64, f64)> = x.iter().map(|&a| a + 0.0).zip(y.iter().copied()).collect();
+    if !pairs.windows(2).all(|w| order(&w[0], &w[1]).is_le()) {
+        pairs.sort_unstable_by(order);
     }
-    let xs = order.iter().map(|&i| x[i] + 0.0).collect();
-    let ys = order.iter().map(|&i| y[i]).collect();
-    (xs, ys, order)
+    pairs.into_iter().unzip()
 }
 
 /// Collapses sorted (x, fitted) pairs to distinct x, keeping the first fit of each tie.
@@ -278,24 +240,19 @@ mod tests {
     }
 
     #[test]
-    fn radix_sort_is_a_stable_sort() {
-        // Reference: the standard library's stable sort on the same keys.
-        let mut r = crate::rng::Rng::new(3, 0);
-        let x: Vec<f64> = (0..5000)
-            .map(|i| match i % 4 {
-                0 => (r.uniform() * 20.0 - 10.0).round(),
-                1 => -r.uniform() * 1e-300,
-                2 => r.normal() * 1e6,
-                _ => -0.0,
-            })
-            .collect();
-        let y: Vec<f64> = (0..x.len()).map(|i| i as f64).collect();
-        let mut want: Vec<usize> = (0..x.len()).collect();
-        want.sort_by(|&a, &b| (x[a] + 0.0).partial_cmp(&(x[b] + 0.0)).unwrap());
-        let (xs, ys, order) = sort_by_x(&x, &y);
-        assert_eq!(order, want);
-        assert!(xs.windows(2).all(|w| w[0] <= w[1]));
-        assert_eq!(ys[0], want[0] as f64);
+    fn sorting_ignores_row_order() {
+        let x = [2.0, -0.0, 1.0, 2.0, 0.0];
+        let y = [5.0, 1.0, 3.0, 4.0, 0.5];
+        let (xs, ys) = sort_by_x(&x, &y);
+        assert_eq!(xs, vec![0.0, 0.0, 1.0, 2.0, 2.0]);
+        assert_eq!(ys, vec![0.5, 1.0, 3.0, 4.0, 5.0]);
+        let (xr, yr): (Vec<f64>, Vec<f64>) = x
+            .iter()
+            .rev()
+            .zip(y.iter().rev())
+            .map(|(a, b)| (*a, *b))
+            .unzip();
+        assert_eq!(sort_by_x(&xr, &yr), (xs, ys));
     }
 
     #[test]

@@ -282,7 +282,7 @@ fn prepare(
 ) -> Result<(Vec<f64>, Vec<f64>, f64, Evaluation)> {
     o.validate()?;
     check_xy(x, y, "a kernel smoother", 1)?;
-    let (xs, ys, _) = sort_by_x(x, y);
+    let (xs, ys) = sort_by_x(x, y);
     let h = o.bandwidth.unwrap_or_else(|| default_bandwidth(&xs));
     let evaluation = match (o.shape, o.evaluation) {
         (KernelShape::Box, _) => Evaluation::Exact,

@@ -7,6 +7,7 @@ use serde::Serialize;
 use crate::curve::{Curve, OptionValue};
 use crate::error::{Error, Result};
 use crate::kernel::{kernel_smooth, KernelOptions};
+use crate::lowess::{lowess, LowessOptions};
 
 /// A smoother family with its settings.
 ///
@@ -24,6 +25,8 @@ use crate::kernel::{kernel_smooth, KernelOptions};
 #[serde(tag = "family", content = "options", rename_all = "lowercase")]
 #[non_exhaustive]
 pub enum Smoother {
+    /// LOWESS.
+    Lowess(LowessOptions),
     /// Nadaraya-Watson or local-linear kernel smoother.
     Kernel(KernelOptions),
 }
@@ -38,6 +41,7 @@ impl Smoother {
     /// [`Error::InvalidOption`] for an unknown family.
     pub fn new(family: &str) -> Result<Smoother> {
         match family {
+            "lowess" => Ok(Smoother::Lowess(LowessOptions::default())),
             "kernel" => Ok(Smoother::Kernel(KernelOptions::default())),
             other => Err(Error::option(
                 "smoother",
@@ -65,6 +69,7 @@ impl Smoother {
     /// [`Error::InvalidOption`] for an unknown name or a value out of range.
     pub fn set(&mut self, name: &str, value: &OptionValue) -> Result<()> {
         match self {
+            Smoother::Lowess(o) => o.set(name, value),
             Smoother::Kernel(o) => o.set(name, value),
         }
     }
@@ -72,6 +77,7 @@ impl Smoother {
     /// The family's name.
     pub fn family(&self) -> &'static str {
         match self {
+            Smoother::Lowess(_) => "lowess",
             Smoother::Kernel(_) => "kernel",
         }
     }
@@ -79,6 +85,7 @@ impl Smoother {
     /// The parameter `tune_smoother` varies by default.
     pub fn main_parameter(&self) -> &'static str {
         match self {
+            Smoother::Lowess(_) => "span",
             Smoother::Kernel(_) => "bandwidth",
         }
     }
@@ -89,6 +96,7 @@ impl Smoother {
     /// Those of the family's fit function.
     pub fn fit(&self, x: &[f64], y: &[f64]) -> Result<Curve> {
         match self {
+            Smoother::Lowess(o) => lowess(x, y, o),
             Smoother::Kernel(o) => kernel_smooth(x, y, o),
         }
     }

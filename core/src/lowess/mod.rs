@@ -40,7 +40,7 @@
 
 use serde::Serialize;
 
-use crate::curve::{check_xy, distinct_points, Curve, Diagnostics, OptionValue};
+use crate::curve::{check_xy, distinct_points, sort_by_x, Curve, Diagnostics, OptionValue};
 use crate::error::{Error, Result};
 
 mod moments;
@@ -206,7 +206,7 @@ fn check_delta(v: f64) -> Result<()> {
 pub fn lowess(x: &[f64], y: &[f64], options: &LowessOptions) -> Result<Curve> {
     options.validate()?;
     check_xy(x, y, "LOWESS", 1)?;
-    let (xs, ys) = sort_pairs(x, y);
+    let (xs, ys) = sort_by_x(x, y);
     let n = xs.len();
     let range = xs[n - 1] - xs[0];
     let delta = options.delta.unwrap_or(0.01 * range);
@@ -231,23 +231,6 @@ pub fn lowess(x: &[f64], y: &[f64], options: &LowessOptions) -> Result<Curve> {
         ..Diagnostics::new(n)
     };
     Ok(Curve::new("lowess", ux, uf, settings, diagnostics))
-}
-
-/// The points sorted by x, tied x by y (both by `total_cmp`, x normalised as
-/// [`crate::curve::sort_by_x`] does), so the sorted data depend only on the set of (x, y) pairs,
-/// not on the row order. Sorting pairs directly is several times faster than sorting an index
-/// at 10^7 points.
-fn sort_pairs(x: &[f64], y: &[f64]) -> (Vec<f64>, Vec<f64>) {
-    let mut pairs: Vec<(f64, f64)> = x.iter().map(|&a| a + 0.0).zip(y.iter().copied()).collect();
-    if !pairs.windows(2).all(|w| {
-        w[0].0
-            .total_cmp(&w[1].0)
-            .then(w[0].1.total_cmp(&w[1].1))
-            .is_le()
-    }) {
-        pairs.sort_unstable_by(|a, b| a.0.total_cmp(&b.0).then(a.1.total_cmp(&b.1)));
-    }
-    pairs.into_iter().unzip()
 }
 
 /// LOWESS of sorted data into `fit`; returns the robustness iterations run.
@@ -429,7 +412,7 @@ mod tests {
 
     #[test]
     fn ties_sorted_by_y_within_runs() {
-        let (xs, ys) = sort_pairs(
+        let (xs, ys) = sort_by_x(
             &[2.0, 1.0, 2.0, 3.0, 2.0, -0.0],
             &[3.0, 5.0, 1.0, 0.0, 2.0, 4.0],
         );
@@ -466,7 +449,7 @@ mod tests {
         };
         for case in r["cases"].as_array().unwrap() {
             let data = &r["inputs"][case["data"].as_str().unwrap()];
-            let (xs, ys) = sort_pairs(&nums(&data["x"]), &nums(&data["y"]));
+            let (xs, ys) = sort_by_x(&nums(&data["x"]), &nums(&data["y"]));
             let mean = ys.iter().sum::<f64>() / ys.len() as f64;
             let sd =
                 (ys.iter().map(|v| (v - mean).powi(2)).sum::<f64>() / (ys.len() - 1) as f64).sqrt();
