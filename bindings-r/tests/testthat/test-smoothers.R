@@ -115,6 +115,8 @@ test_that("a spec keeps the family and only the options given", {
   expect_identical(s$family, "kernel")
   expect_identical(s$options, list(bandwidth = 0.5, shape = "box"))
   expect_length(smoother_kernel()$options, 0)
+  # NULL is "the core's default": left out, not passed.
+  expect_identical(smoother_kernel(bandwidth = NULL, degree = 0L)$options, list(degree = 0L))
   expect_identical(
     capture.output(print(s)),
     c("<trajweave smoother: kernel>", "  bandwidth = 0.5", "  shape = \"box\"")
@@ -290,6 +292,35 @@ test_that("tune_smoother's leave-one-subject-out score equals a brute-force R co
   }, numeric(1))
   expect_equal(tuned$scores$score, brute, tolerance = TOL_TUNE)
   expect_identical(tuned$scores$candidate, candidates)
+})
+
+test_that("the brute-force check holds for LOWESS spans too", {
+  skip_unless_family("lowess")
+  d <- tiny_panel()
+  candidates <- c(0.5, 0.8, 1)
+  tuned <- tune_smoother(d$panel, smoother_lowess(iterations = 0), candidates)
+  expect_identical(tuned$parameter, "span")
+  brute <- vapply(candidates, function(f) {
+    s <- smoother_lowess(span = f, iterations = 0)
+    sse <- 0
+    for (i in unique(d$id)) {
+      out <- d$id == i
+      fit <- fit_smoother(s, d$t[!out], d$y[!out])
+      sse <- sse + sum((predict(fit, d$t[out]) - d$y[out])^2)
+    }
+    sse / length(d$y)
+  }, numeric(1))
+  expect_equal(tuned$scores$score, brute, tolerance = TOL_TUNE)
+})
+
+test_that("spline tuning shows each candidate's GCV of the full-data fit", {
+  skip_unless_family("spline")
+  d <- tiny_panel()
+  tuned <- tune_smoother(d$panel, smoother_spline(), c(3, 5), parameter = "df")
+  full <- vapply(c(3, 5), function(df) {
+    fit_smoother(smoother_spline(df = df), d$t, d$y)$diagnostics$gcv
+  }, numeric(1))
+  expect_identical(tuned$scores$gcv, full)
 })
 
 test_that("best_index counts from 1 and points at the smallest score", {
