@@ -66,6 +66,8 @@ demo-data-check: cli
 fixtures-check: setup
 	$(PY) tests/reference/describe_reference.py --check
 	$(PY) tests/reference/kernel_py.py --check
+	Rscript tests/reference/lowess_r.R --check
+	$(PY) tests/reference/lowess_py.py --check
 
 # Speed: criterion per smoother, then ours vs the reference libraries side by side.
 bench: cli python r
