@@ -6,6 +6,7 @@
 use criterion::{criterion_group, criterion_main, BenchmarkId, Criterion};
 use trajweave_core::kernel::{kernel_smooth, KernelOptions, KernelShape};
 use trajweave_core::rng::Rng;
+use trajweave_core::smoother::Smoother;
 
 fn data(n: usize) -> (Vec<f64>, Vec<f64>) {
     let mut r = Rng::new(1, 0);
@@ -33,5 +34,23 @@ fn kernel(c: &mut Criterion) {
     g.finish();
 }
 
-criterion_group!(benches, kernel);
+/// Each family at its defaults, through the same dispatch the fronts use.
+fn families(c: &mut Criterion) {
+    let mut g = c.benchmark_group("smoother");
+    g.sample_size(10);
+    for n in [10_000, 100_000, 1_000_000] {
+        let (x, y) = data(n);
+        for family in ["lowess", "spline", "super"] {
+            let Ok(s) = Smoother::new(family) else {
+                continue;
+            };
+            g.bench_with_input(BenchmarkId::new(family, n), &n, |b, _| {
+                b.iter(|| s.fit(&x, &y).unwrap())
+            });
+        }
+    }
+    g.finish();
+}
+
+criterion_group!(benches, kernel, families);
 criterion_main!(benches);
