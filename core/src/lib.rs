@@ -23,6 +23,7 @@ pub mod panel;
 pub mod quantile;
 pub mod rng;
 pub mod simulate;
+pub mod supsmu;
 
 pub use describe::{describe, Description, Pattern};
 pub use error::{Error, Result};
@@ -31,3 +32,4 @@ pub use panel::{Covariate, Missing, Panel, SubjectId, SubjectIds};
 pub use simulate::{
     simulate, SimulateOptions, SimulatedPanel, SIMULATED_COLUMNS, SIMULATE_OPTION_NAMES,
 };
+pub use supsmu::{super_smoother, SuperSmootherOptions};
