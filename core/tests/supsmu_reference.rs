@@ -182,7 +182,7 @@ fn affine_change_of_y_carries_through() {
 #[test]
 fn thread_count_does_not_change_the_fit() {
     // Invariant: the parallel passes are independent, so 1 and 2 threads agree bit for bit.
-    let (x, y) = generated(5000, 8);
+    let (x, y) = generated(60_000, 8); // long enough for the two-block passes
     let run = |threads| {
         rayon::ThreadPoolBuilder::new()
             .num_threads(threads)

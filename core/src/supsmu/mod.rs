@@ -29,7 +29,11 @@
 //! run in parallel (`rayon::join`); each is sequential inside, so results do not depend on the
 //! thread count.
 
-use crate::curve::{check_xy, distinct_points, sort_by_x, Curve, Diagnostics, OptionValue};
+mod running;
+
+use rayon::slice::ParallelSliceMut;
+
+use crate::curve::{check_xy, distinct_points, Curve, Diagnostics, OptionValue};
 use crate::error::{Error, Result};
 
 // The reference keeps these as single-precision literals; the same doubles decide the window
@@ -189,7 +193,13 @@ fn bass_ok(b: f64) -> bool {
 /// fewer than 2 distinct x values.
 pub fn super_smoother(x: &[f64], y: &[f64], options: &SuperSmootherOptions) -> Result<Curve> {
     options.validate()?;
-    check_xy(x, y, ESTIMATE, MIN_DISTINCT)?;
+    // Errors that name a row must name the caller's row, so bad input is checked in its own
+    // order; good input is checked once sorted, where counting distinct x is linear.
+    if x.len() != y.len() || !x.iter().chain(y).all(|v| v.is_finite()) {
+        check_xy(x, y, ESTIMATE, MIN_DISTINCT)?;
+    }
+    let (xs, ys, ties) = sort_pairs(x, y);
+    check_xy(&xs, &ys, ESTIMATE, MIN_DISTINCT)?;
     let n = x.len();
     if n < MIN_POINTS {
         return Err(Error::TooFew {
@@ -199,15 +209,14 @@ pub fn super_smoother(x: &[f64], y: &[f64], options: &SuperSmootherOptions) -> R
             found: n,
         });
     }
-    let (xs, mut ys, _) = sort_by_x(x, y);
-    sort_ties_by_y(&xs, &mut ys);
     let vsmlsq = slope_floor(&xs);
     let fitted = match options.span {
         Some(span) => {
-            running_lines(&xs, &mut ys, span, vsmlsq, None);
-            ys
+            let mut fit = vec![0.0; n];
+            running::smooth_into(&xs, &ys, &mut fit, &ties, span, vsmlsq);
+            fit
         }
-        None => variable_span(&xs, ys, options.bass, vsmlsq),
+        None => variable_span(&xs, ys, &ties, options.bass, vsmlsq),
     };
     let (ux, uf) = distinct_points(&xs, &fitted);
     let mut diagnostics = Diagnostics::new(n);
@@ -216,18 +225,43 @@ pub fn super_smoother(x: &[f64], y: &[f64], options: &SuperSmootherOptions) -> R
     Ok(Curve::new("super", ux, uf, settings, diagnostics))
 }
 
-/// Orders y within each run of tied x, so the windows (which may cut a run of ties) do not
-/// depend on the input row order.
-fn sort_ties_by_y(xs: &[f64], ys: &mut [f64]) {
+/// The points ordered by x and tied x by y, as two columns, with the runs of tied x
+/// (`start..end`, longer than one). Ordering ties by y makes the windows (which may cut a run
+/// of ties) independent of the input row order. The sort compares integer images of x; the
+/// ties are then put in y order, so the result is unique whatever the sort's schedule.
+fn sort_pairs(x: &[f64], y: &[f64]) -> (Vec<f64>, Vec<f64>, Vec<(usize, usize)>) {
+    let mut pairs: Vec<(u64, f64)> = x.iter().zip(y).map(|(&a, &b)| (key(a), b)).collect();
+    pairs.par_sort_unstable_by_key(|p| p.0);
+    let mut ties = Vec::new();
     let mut start = 0;
-    for j in 1..=xs.len() {
-        if j == xs.len() || xs[j] != xs[start] {
+    for j in 1..=pairs.len() {
+        if j == pairs.len() || pairs[j].0 != pairs[start].0 {
             if j - start > 1 {
-                ys[start..j].sort_unstable_by(f64::total_cmp);
+                pairs[start..j].sort_unstable_by(|p, q| p.1.total_cmp(&q.1));
+                ties.push((start, j));
             }
             start = j;
         }
     }
+    let (xs, ys) = pairs.into_iter().map(|(k, b)| (unkey(k), b)).unzip();
+    (xs, ys, ties)
+}
+
+const SIGN: u64 = 1 << 63;
+
+/// An integer whose order is that of the finite double `x` (`-0.0` taken as `0.0`).
+fn key(x: f64) -> u64 {
+    let b = (x + 0.0).to_bits();
+    if b & SIGN != 0 {
+        !b
+    } else {
+        b | SIGN
+    }
+}
+
+/// The inverse of [`key`].
+fn unkey(k: u64) -> f64 {
+    f64::from_bits(if k & SIGN != 0 { k & !SIGN } else { !k })
 }
 
 /// `(eps s)^2` with s = `x_(3i) - x_(i)`, i = floor(n/4) (1-based ranks), the two ranks moved
@@ -249,25 +283,41 @@ fn slope_floor(xs: &[f64]) -> f64 {
 }
 
 /// The variable-span fit at the sorted points; consumes `ys`.
-fn variable_span(xs: &[f64], ys: Vec<f64>, bass: f64, vsmlsq: f64) -> Vec<f64> {
-    // Each span's smooth and the midrange smooth of its cross-validated residuals.
-    let pass = |span: f64| {
-        let mut fit = ys.clone();
-        let mut resid = vec![0.0; xs.len()];
-        running_lines(xs, &mut fit, span, vsmlsq, Some(&mut resid));
-        running_lines(xs, &mut resid, MIDRANGE, vsmlsq, None);
+fn variable_span(
+    xs: &[f64],
+    ys: Vec<f64>,
+    ties: &[(usize, usize)],
+    bass: f64,
+    vsmlsq: f64,
+) -> Vec<f64> {
+    let n = xs.len();
+    // Per span: its smooth, and its cross-validated residuals, later smoothed in place with
+    // the midrange span. Six passes in three chains, ordered so that two threads finish in
+    // the time of three passes: (tweeter, its residuals) beside (midrange, woofer), then the
+    // residuals of woofer and midrange side by side.
+    let first = |span: f64| {
+        let (mut fit, mut resid) = (vec![0.0; n], vec![0.0; n]);
+        running::smooth_with_cv(xs, &ys, &mut fit, &mut resid, ties, span, vsmlsq);
         (fit, resid)
     };
-    let ((s1, e1), ((s2, e2), (s3, e3))) = rayon::join(
-        || pass(TWEETER),
-        || rayon::join(|| pass(MIDRANGE), || pass(WOOFER)),
+    let residuals = |mut resid: Vec<f64>| {
+        running::smooth_in_place(xs, &mut resid, ties, MIDRANGE, vsmlsq);
+        resid
+    };
+    let ((s1, e1), ((s2, r2), (s3, r3))) = rayon::join(
+        || {
+            let (s, r) = first(TWEETER);
+            (s, residuals(r))
+        },
+        || (first(MIDRANGE), first(WOOFER)),
     );
-    drop(ys);
+    let (e3, e2) = rayon::join(|| residuals(r3), || residuals(r2));
 
     // The span with the smallest smoothed residual, moved toward the woofer by the bass.
+    // Starting from +inf rather than a large constant keeps this scale-free in y.
     let mut spans = e1;
     let bass_on = bass > 0.0 && bass <= 10.0;
-    for j in 0..spans.len() {
+    for j in 0..n {
         let (mut best, mut span) = (f64::INFINITY, WOOFER);
         for (e, s) in [(spans[j], TWEETER), (e2[j], MIDRANGE), (e3[j], WOOFER)] {
             if e < best {
@@ -280,14 +330,14 @@ fn variable_span(xs: &[f64], ys: Vec<f64>, bass: f64, vsmlsq: f64) -> Vec<f64> {
         }
         spans[j] = span;
     }
-    drop(e3);
-    running_lines(xs, &mut spans, MIDRANGE, vsmlsq, None);
+    drop(e2);
+    let mut smoothed = ys; // no longer needed: reuse its storage
+    running::smooth_into(xs, &spans, &mut smoothed, ties, MIDRANGE, vsmlsq);
 
     // Interpolate between the two smooths whose spans bracket the smoothed span.
-    let mut blend = e2;
-    for j in 0..blend.len() {
-        let span = spans[j].clamp(TWEETER, WOOFER);
-        let f = span - MIDRANGE;
+    let mut blend = spans;
+    for j in 0..n {
+        let f = smoothed[j].clamp(TWEETER, WOOFER) - MIDRANGE;
         blend[j] = if f < 0.0 {
             let f = -f / (MIDRANGE - TWEETER);
             (1.0 - f) * s2[j] + f * s1[j]
@@ -296,119 +346,10 @@ fn variable_span(xs: &[f64], ys: Vec<f64>, bass: f64, vsmlsq: f64) -> Vec<f64> {
             (1.0 - f) * s2[j] + f * s3[j]
         };
     }
-    drop((s1, s2, s3, spans));
-    running_lines(xs, &mut blend, TWEETER, vsmlsq, None);
-    blend
-}
-
-/// Running sums of the points in a window: count, means, and centred sums of squares and
-/// cross-products, updated one point at a time.
-#[derive(Default)]
-struct Window {
-    count: f64,
-    xm: f64,
-    ym: f64,
-    var: f64,
-    cvar: f64,
-}
-
-impl Window {
-    fn add(&mut self, x: f64, y: f64) {
-        let before = self.count;
-        self.count += 1.0;
-        self.xm = (before * self.xm + x) / self.count;
-        self.ym = (before * self.ym + y) / self.count;
-        if before > 0.0 {
-            let t = self.count * (x - self.xm) / before;
-            self.var += t * (x - self.xm);
-            self.cvar += t * (y - self.ym);
-        }
-    }
-
-    fn remove(&mut self, x: f64, y: f64) {
-        let before = self.count;
-        self.count -= 1.0;
-        if self.count > 0.0 {
-            let t = before * (x - self.xm) / self.count;
-            self.var -= t * (x - self.xm);
-            self.cvar -= t * (y - self.ym);
-            self.xm = (before * self.xm - x) / self.count;
-            self.ym = (before * self.ym - y) / self.count;
-        }
-    }
-}
-
-/// One running-lines pass over sorted `xs`, replacing `values` by their smooth in place; with
-/// `cv`, also writes each point's absolute leave-one-out residual (where the leverage reaches
-/// 1, the previous point's). Tied x then share the mean of their smooths.
-fn running_lines(xs: &[f64], values: &mut [f64], span: f64, vsmlsq: f64, cv: Option<&mut [f64]>) {
-    let n = xs.len();
-    // Truncation as in the reference's conversion to an integer.
-    let half = ((0.5 * span * n as f64 + 0.5) as usize).max(2);
-    let mut w = Window::default();
-    for j in 0..(2 * half + 1).min(n) {
-        w.add(xs[j], values[j]);
-    }
-    // The originals of the last `half + 1` points, overwritten in `values` but still needed
-    // when they leave the window; point j's slot is j mod (half + 1).
-    let keep = half + 1;
-    let mut kept = vec![0.0; keep.min(n)];
-    let mut slot = 0;
-    let mut cv = cv;
-    for j in 0..n {
-        let y = values[j];
-        if j >= keep && j + half < n {
-            w.remove(xs[j - keep], kept[slot]);
-            w.add(xs[j + half], values[j + half]);
-        }
-        let dx = xs[j] - w.xm;
-        let slope = if w.var > vsmlsq { w.cvar / w.var } else { 0.0 };
-        let smooth = slope * dx + w.ym;
-        if let Some(cv) = cv.as_deref_mut() {
-            let mut h = if w.count > 0.0 { 1.0 / w.count } else { 0.0 };
-            if w.var > vsmlsq {
-                h += dx * dx / w.var;
-            }
-            let a = 1.0 - h;
-            cv[j] = if a > 0.0 {
-                (y - smooth).abs() / a
-            } else if j > 0 {
-                cv[j - 1]
-            } else {
-                0.0
-            };
-        }
-        if slot < kept.len() {
-            kept[slot] = y;
-        }
-        slot += 1;
-        if slot == keep {
-            slot = 0;
-        }
-        values[j] = smooth;
-    }
-    average_ties(xs, values);
-}
-
-/// Gives every run of tied x the mean of its values.
-fn average_ties(xs: &[f64], values: &mut [f64]) {
-    let n = xs.len();
-    let mut start = 0;
-    while start < n {
-        let mut end = start + 1;
-        let mut sum = values[start];
-        let mut count = 1.0;
-        while end < n && xs[end] <= xs[end - 1] {
-            sum += values[end];
-            count += 1.0;
-            end += 1;
-        }
-        if end - start > 1 {
-            let mean = sum / count;
-            values[start..end].fill(mean);
-        }
-        start = end;
-    }
+    drop((s1, s2, s3, smoothed));
+    let mut fit = e3;
+    running::smooth_into(xs, &blend, &mut fit, ties, TWEETER, vsmlsq);
+    fit
 }
 
 #[cfg(test)]
@@ -416,21 +357,25 @@ mod tests {
     use super::*;
 
     #[test]
-    fn window_matches_direct_least_squares() {
-        // Closed form: slope = Sxy / Sxx over the points, computed directly.
-        let (x, y) = ([0.0, 1.0, 3.0, 4.0, 7.0], [1.0, 0.5, 2.0, 4.5, 3.0]);
-        let mut w = Window::default();
-        for i in 0..5 {
-            w.add(x[i], y[i]);
+    fn keys_keep_the_order_of_doubles() {
+        // IEEE 754 order, checked on neighbours of every sign and size.
+        let v = [
+            f64::MIN,
+            -1e300,
+            -1.0,
+            -1e-310,
+            0.0,
+            1e-310,
+            1.0,
+            2.5,
+            1e300,
+            f64::MAX,
+        ];
+        for w in v.windows(2) {
+            assert!(key(w[0]) < key(w[1]));
         }
-        w.remove(x[0], y[0]);
-        w.add(9.0, 6.0);
-        let (xx, yy) = ([1.0, 3.0, 4.0, 7.0, 9.0], [0.5, 2.0, 4.5, 3.0, 6.0]);
-        let (mx, my) = (xx.iter().sum::<f64>() / 5.0, yy.iter().sum::<f64>() / 5.0);
-        let sxx: f64 = xx.iter().map(|a| (a - mx) * (a - mx)).sum();
-        let sxy: f64 = xx.iter().zip(&yy).map(|(a, b)| (a - mx) * (b - my)).sum();
-        assert!((w.xm - mx).abs() < 1e-12 && (w.ym - my).abs() < 1e-12);
-        assert!((w.var - sxx).abs() < 1e-10 && (w.cvar - sxy).abs() < 1e-10);
+        assert_eq!(key(-0.0), key(0.0));
+        assert!(v.iter().all(|&a| unkey(key(a)) == a));
     }
 
     #[test]
