@@ -3,7 +3,8 @@
 //! `cargo run --release -p trajweave-core --example supsmu_speed -- 1000000 [file]` fits n
 //! generated points (uneven x with ties, rows in random order) with the default options and
 //! the fixed span 0.3; with `file`, also writes x then y as little-endian doubles so R can time
-//! `stats::supsmu` on the same data.
+//! `stats::supsmu` on the same data; with a second file, also writes the default fit there
+//! (distinct x then fitted values, little-endian doubles) for comparison.
 
 use std::time::Instant;
 
@@ -20,6 +21,15 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
     let y: Vec<f64> = x.iter().map(|&t| t.sin() + 0.3 * rng.normal()).collect();
     if let Some(path) = args.get(2) {
         let bytes: Vec<u8> = x.iter().chain(&y).flat_map(|v| v.to_le_bytes()).collect();
+        std::fs::write(path, bytes)?;
+    }
+    if let Some(path) = args.get(3) {
+        let c = super_smoother(&x, &y, &SuperSmootherOptions::default())?;
+        let bytes: Vec<u8> =
+            c.x.iter()
+                .chain(&c.fitted)
+                .flat_map(|v| v.to_le_bytes())
+                .collect();
         std::fs::write(path, bytes)?;
     }
     let threads = rayon::current_num_threads();

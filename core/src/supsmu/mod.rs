@@ -24,14 +24,20 @@
 //! **Fixed span** (`span = Some(f)`, f in (0, 1]): one running-lines pass with span f.
 //!
 //! Conventions follow R's `stats::supsmu` (unit weights, non-periodic), the test reference:
-//! points are sorted by x and tied x by y, the spans and constants are the single-precision
-//! values R's routine holds, and the curve reports each distinct x once. The three span passes
-//! run in parallel (`rayon::join`); each is sequential inside, so results do not depend on the
-//! thread count.
+//! points are sorted by x and tied x by y (so the fit does not depend on row order), the spans
+//! and constants are the single-precision values R's routine holds, and the curve reports each
+//! distinct x once. Where a leverage is 1 (a point alone at its x in a window of ties) its
+//! residual is the previous point's; leverages within 1e-10 of 1 count as 1, since rounding
+//! puts such values on either side of it. Needs at least 4 points and 2 distinct x.
+//!
+//! Parallel work (rayon): the sort, the six passes of the three spans (scheduled so that two
+//! threads take the time of three passes) and the later passes, which are cut at a fixed place
+//! into two blocks when n >= 50 000. Every pass is sequential inside its block and the blocks
+//! depend on the data alone, so the result is the same for any thread count.
 
 mod running;
 
-use rayon::slice::ParallelSliceMut;
+use rayon::prelude::*;
 
 use crate::curve::{check_xy, distinct_points, Curve, Diagnostics, OptionValue};
 use crate::error::{Error, Result};
@@ -227,29 +233,37 @@ pub fn super_smoother(x: &[f64], y: &[f64], options: &SuperSmootherOptions) -> R
 
 /// The points ordered by x and tied x by y, as two columns, with the runs of tied x
 /// (`start..end`, longer than one). Ordering ties by y makes the windows (which may cut a run
-/// of ties) independent of the input row order. The sort compares integer images of x; the
-/// ties are then put in y order, so the result is unique whatever the sort's schedule.
+/// of ties) independent of the input row order. The sort compares order-keeping integer
+/// images of (x, y); only identical pairs compare equal, so the parallel unstable sort has one
+/// possible result.
 fn sort_pairs(x: &[f64], y: &[f64]) -> (Vec<f64>, Vec<f64>, Vec<(usize, usize)>) {
-    let mut pairs: Vec<(u64, f64)> = x.iter().zip(y).map(|(&a, &b)| (key(a), b)).collect();
-    pairs.par_sort_unstable_by_key(|p| p.0);
+    let mut pairs: Vec<(u64, u64)> = x
+        .par_iter()
+        .zip(y)
+        .map(|(&a, &b)| (key(a), key(b)))
+        .collect();
+    pairs.par_sort_unstable();
     let mut ties = Vec::new();
     let mut start = 0;
     for j in 1..=pairs.len() {
         if j == pairs.len() || pairs[j].0 != pairs[start].0 {
             if j - start > 1 {
-                pairs[start..j].sort_unstable_by(|p, q| p.1.total_cmp(&q.1));
                 ties.push((start, j));
             }
             start = j;
         }
     }
-    let (xs, ys) = pairs.into_iter().map(|(k, b)| (unkey(k), b)).unzip();
+    let (xs, ys) = pairs
+        .into_par_iter()
+        .map(|(a, b)| (unkey(a), unkey(b)))
+        .unzip();
     (xs, ys, ties)
 }
 
 const SIGN: u64 = 1 << 63;
 
-/// An integer whose order is that of the finite double `x` (`-0.0` taken as `0.0`).
+/// An integer whose order is that of the finite double `x` (`-0.0` taken as `0.0`, as in
+/// every comparison of doubles).
 fn key(x: f64) -> u64 {
     let b = (x + 0.0).to_bits();
     if b & SIGN != 0 {
@@ -317,35 +331,38 @@ fn variable_span(
     // Starting from +inf rather than a large constant keeps this scale-free in y.
     let mut spans = e1;
     let bass_on = bass > 0.0 && bass <= 10.0;
-    for j in 0..n {
-        let (mut best, mut span) = (f64::INFINITY, WOOFER);
-        for (e, s) in [(spans[j], TWEETER), (e2[j], MIDRANGE), (e3[j], WOOFER)] {
-            if e < best {
-                best = e;
-                span = s;
+    spans
+        .par_iter_mut()
+        .zip(e2.par_iter().zip(&e3))
+        .for_each(|(e1j, (&e2j, &e3j))| {
+            let (mut best, mut span) = (f64::INFINITY, WOOFER);
+            for (e, s) in [(*e1j, TWEETER), (e2j, MIDRANGE), (e3j, WOOFER)] {
+                if e < best {
+                    best = e;
+                    span = s;
+                }
             }
-        }
-        if bass_on && best < e3[j] && best > 0.0 {
-            span += (WOOFER - span) * (best / e3[j]).max(RATIO_FLOOR).powf(10.0 - bass);
-        }
-        spans[j] = span;
-    }
+            if bass_on && best < e3j && best > 0.0 {
+                span += (WOOFER - span) * (best / e3j).max(RATIO_FLOOR).powf(10.0 - bass);
+            }
+            *e1j = span;
+        });
     drop(e2);
     let mut smoothed = ys; // no longer needed: reuse its storage
     running::smooth_into(xs, &spans, &mut smoothed, ties, MIDRANGE, vsmlsq);
 
     // Interpolate between the two smooths whose spans bracket the smoothed span.
     let mut blend = spans;
-    for j in 0..n {
+    blend.par_iter_mut().enumerate().for_each(|(j, b)| {
         let f = smoothed[j].clamp(TWEETER, WOOFER) - MIDRANGE;
-        blend[j] = if f < 0.0 {
+        *b = if f < 0.0 {
             let f = -f / (MIDRANGE - TWEETER);
             (1.0 - f) * s2[j] + f * s1[j]
         } else {
             let f = f / (WOOFER - MIDRANGE);
             (1.0 - f) * s2[j] + f * s3[j]
         };
-    }
+    });
     drop((s1, s2, s3, smoothed));
     let mut fit = e3;
     running::smooth_into(xs, &blend, &mut fit, ties, TWEETER, vsmlsq);
