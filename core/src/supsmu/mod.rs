@@ -233,16 +233,20 @@ pub fn super_smoother(x: &[f64], y: &[f64], options: &SuperSmootherOptions) -> R
 
 /// The points ordered by x and tied x by y, as two columns, with the runs of tied x
 /// (`start..end`, longer than one). Ordering ties by y makes the windows (which may cut a run
-/// of ties) independent of the input row order. The sort compares order-keeping integer
-/// images of (x, y); only identical pairs compare equal, so the parallel unstable sort has one
-/// possible result.
+/// of ties) independent of the input row order. The sorts compare order-keeping integer
+/// images of x and y; only identical pairs end up level, so the parallel unstable sorts have
+/// one possible result.
 fn sort_pairs(x: &[f64], y: &[f64]) -> (Vec<f64>, Vec<f64>, Vec<(usize, usize)>) {
     let mut pairs: Vec<(u64, u64)> = x
         .par_iter()
         .zip(y)
         .map(|(&a, &b)| (key(a), key(b)))
         .collect();
-    pairs.par_sort_unstable();
+    // By x alone, then each run of tied x by y: cheaper than comparing pairs throughout.
+    pairs.par_sort_unstable_by_key(|p| p.0);
+    pairs
+        .par_chunk_by_mut(|p, q| p.0 == q.0)
+        .for_each(|run| run.sort_unstable_by_key(|p| p.1));
     let mut ties = Vec::new();
     let mut start = 0;
     for j in 1..=pairs.len() {

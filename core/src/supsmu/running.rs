@@ -30,17 +30,16 @@ struct Window {
 }
 
 impl Window {
+    /// Welford's update; the one division does not depend on the data, so it stays off the
+    /// dependency chains.
     fn add(&mut self, x: f64, y: f64) {
-        let before = self.count;
         self.count += 1.0;
         self.inv_count = 1.0 / self.count;
-        self.xm = (before * self.xm + x) / self.count;
-        self.ym = (before * self.ym + y) / self.count;
-        if before > 0.0 {
-            let t = self.count * (x - self.xm) / before;
-            self.var += t * (x - self.xm);
-            self.cvar += t * (y - self.ym);
-        }
+        let (dx, dy) = (x - self.xm, y - self.ym);
+        self.xm += dx * self.inv_count;
+        self.ym += dy * self.inv_count;
+        self.var += dx * (x - self.xm);
+        self.cvar += dx * (y - self.ym);
     }
 
     #[cfg(test)]
