@@ -27,6 +27,7 @@ pub mod quantile;
 pub mod rng;
 pub mod simulate;
 pub mod smoother;
+pub mod supsmu;
 pub mod tune;
 
 pub use describe::{describe, Description, Pattern};
@@ -36,3 +37,4 @@ pub use panel::{Covariate, Missing, Panel, SubjectId, SubjectIds};
 pub use simulate::{
     simulate, SimulateOptions, SimulatedPanel, SIMULATED_COLUMNS, SIMULATE_OPTION_NAMES,
 };
+pub use supsmu::{super_smoother, SuperSmootherOptions};

@@ -8,6 +8,7 @@ use crate::curve::{Curve, OptionValue};
 use crate::error::{Error, Result};
 use crate::kernel::{kernel_smooth, KernelOptions};
 use crate::lowess::{lowess, LowessOptions};
+use crate::supsmu::{super_smoother, SuperSmootherOptions};
 
 /// A smoother family with its settings.
 ///
@@ -29,6 +30,8 @@ pub enum Smoother {
     Lowess(LowessOptions),
     /// Nadaraya-Watson or local-linear kernel smoother.
     Kernel(KernelOptions),
+    /// Friedman's super smoother.
+    Super(SuperSmootherOptions),
 }
 
 /// The family names, as every front spells them.
@@ -43,6 +46,7 @@ impl Smoother {
         match family {
             "lowess" => Ok(Smoother::Lowess(LowessOptions::default())),
             "kernel" => Ok(Smoother::Kernel(KernelOptions::default())),
+            "super" => Ok(Smoother::Super(SuperSmootherOptions::default())),
             other => Err(Error::option(
                 "smoother",
                 format!("{other:?}"),
@@ -71,6 +75,7 @@ impl Smoother {
         match self {
             Smoother::Lowess(o) => o.set(name, value),
             Smoother::Kernel(o) => o.set(name, value),
+            Smoother::Super(o) => o.set(name, value),
         }
     }
 
@@ -79,13 +84,14 @@ impl Smoother {
         match self {
             Smoother::Lowess(_) => "lowess",
             Smoother::Kernel(_) => "kernel",
+            Smoother::Super(_) => "super",
         }
     }
 
     /// The parameter `tune_smoother` varies by default.
     pub fn main_parameter(&self) -> &'static str {
         match self {
-            Smoother::Lowess(_) => "span",
+            Smoother::Lowess(_) | Smoother::Super(_) => "span",
             Smoother::Kernel(_) => "bandwidth",
         }
     }
@@ -98,6 +104,7 @@ impl Smoother {
         match self {
             Smoother::Lowess(o) => lowess(x, y, o),
             Smoother::Kernel(o) => kernel_smooth(x, y, o),
+            Smoother::Super(o) => super_smoother(x, y, o),
         }
     }
 }
