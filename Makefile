@@ -68,6 +68,7 @@ fixtures-check: setup
 	$(PY) tests/reference/kernel_py.py --check
 	Rscript tests/reference/lowess_r.R --check
 	$(PY) tests/reference/lowess_py.py --check
+	Rscript tests/reference/supsmu_r.R --check
 
 # Speed: criterion per smoother, then ours vs the reference libraries side by side.
 bench: cli python r
