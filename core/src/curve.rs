@@ -7,6 +7,7 @@
 //! of R's `approx(rule = 2)`), so held-out subjects and bootstrap grids can be evaluated from
 //! any smoother the same way.
 
+use rayon::prelude::*;
 use serde::Serialize;
 
 use crate::error::{Error, Result};
@@ -194,15 +195,45 @@ pub fn check_xy(x: &[f64], y: &[f64], estimate: &str, min_distinct: usize) -> Re
 }
 
 /// The points sorted by x, tied x in y order: a total order of the pairs, so the result (and
-/// every sum a smoother forms over it) does not depend on the input's row order. -0 is
-/// stored as 0. Already-sorted input is detected and not sorted again.
+/// every sum a smoother forms over it) does not depend on the input's row order. The sorts
+/// compare order-keeping integer images of x and y (so -0 and 0 are one value) and run in
+/// parallel; only identical pairs end up level, so the unstable sorts have one possible
+/// result whatever the thread count.
 pub fn sort_by_x(x: &[f64], y: &[f64]) -> (Vec<f64>, Vec<f64>) {
-    let order = |a: &(f64, f64), b: &(f64, f64)| a.0.total_cmp(&b.0).then(a.1.total_cmp(&b.1));
-    let mut pairs: Vec<(f64, f64)> = x.iter().map(|&a| a + 0.0).zip(y.iter().copied()).collect();
-    if !pairs.windows(2).all(|w| order(&w[0], &w[1]).is_le()) {
-        pairs.sort_unstable_by(order);
+    let mut pairs: Vec<(u64, u64)> = x
+        .par_iter()
+        .zip(y)
+        .map(|(&a, &b)| (key(a), key(b)))
+        .collect();
+    if !pairs.par_windows(2).all(|w| w[0] <= w[1]) {
+        // By x alone, then each run of tied x by y: cheaper than comparing pairs throughout.
+        pairs.par_sort_unstable_by_key(|p| p.0);
+        pairs
+            .par_chunk_by_mut(|p, q| p.0 == q.0)
+            .for_each(|run| run.sort_unstable_by_key(|p| p.1));
     }
-    pairs.into_iter().unzip()
+    pairs
+        .into_par_iter()
+        .map(|(a, b)| (unkey(a), unkey(b)))
+        .unzip()
+}
+
+const SIGN: u64 = 1 << 63;
+
+/// An integer whose order is that of the finite double `x` (`-0.0` taken as `0.0`, as in
+/// every comparison of doubles).
+fn key(x: f64) -> u64 {
+    let b = (x + 0.0).to_bits();
+    if b & SIGN != 0 {
+        !b
+    } else {
+        b | SIGN
+    }
+}
+
+/// The inverse of [`key`].
+fn unkey(k: u64) -> f64 {
+    f64::from_bits(if k & SIGN != 0 { k & !SIGN } else { !k })
 }
 
 /// Collapses sorted (x, fitted) pairs to distinct x, keeping the first fit of each tie.
@@ -237,6 +268,28 @@ mod tests {
             vec![10.0, 10.0, 15.0, 20.0, 10.0, 0.0, 0.0]
         );
         assert!(c.predict(&[f64::NAN])[0].is_nan());
+    }
+
+    #[test]
+    fn keys_keep_the_order_of_doubles() {
+        // IEEE 754 order, checked on neighbours of every sign and size.
+        let v = [
+            f64::MIN,
+            -1e300,
+            -1.0,
+            -1e-310,
+            0.0,
+            1e-310,
+            1.0,
+            2.5,
+            1e300,
+            f64::MAX,
+        ];
+        for w in v.windows(2) {
+            assert!(key(w[0]) < key(w[1]));
+        }
+        assert_eq!(key(-0.0), key(0.0));
+        assert!(v.iter().all(|&a| unkey(key(a)) == a));
     }
 
     #[test]

@@ -39,7 +39,7 @@ mod running;
 
 use rayon::prelude::*;
 
-use crate::curve::{check_xy, distinct_points, Curve, Diagnostics, OptionValue};
+use crate::curve::{check_xy, distinct_points, sort_by_x, Curve, Diagnostics, OptionValue};
 use crate::error::{Error, Result};
 
 // The reference keeps these as single-precision literals; the same doubles decide the window
@@ -204,7 +204,8 @@ pub fn super_smoother(x: &[f64], y: &[f64], options: &SuperSmootherOptions) -> R
     if x.len() != y.len() || !x.iter().chain(y).all(|v| v.is_finite()) {
         check_xy(x, y, ESTIMATE, MIN_DISTINCT)?;
     }
-    let (xs, ys, ties) = sort_pairs(x, y);
+    let (xs, ys) = sort_by_x(x, y);
+    let ties = tie_runs(&xs);
     check_xy(&xs, &ys, ESTIMATE, MIN_DISTINCT)?;
     let n = x.len();
     if n < MIN_POINTS {
@@ -231,55 +232,19 @@ pub fn super_smoother(x: &[f64], y: &[f64], options: &SuperSmootherOptions) -> R
     Ok(Curve::new("super", ux, uf, settings, diagnostics))
 }
 
-/// The points ordered by x and tied x by y, as two columns, with the runs of tied x
-/// (`start..end`, longer than one). Ordering ties by y makes the windows (which may cut a run
-/// of ties) independent of the input row order. The sorts compare order-keeping integer
-/// images of x and y; only identical pairs end up level, so the parallel unstable sorts have
-/// one possible result.
-fn sort_pairs(x: &[f64], y: &[f64]) -> (Vec<f64>, Vec<f64>, Vec<(usize, usize)>) {
-    let mut pairs: Vec<(u64, u64)> = x
-        .par_iter()
-        .zip(y)
-        .map(|(&a, &b)| (key(a), key(b)))
-        .collect();
-    // By x alone, then each run of tied x by y: cheaper than comparing pairs throughout.
-    pairs.par_sort_unstable_by_key(|p| p.0);
-    pairs
-        .par_chunk_by_mut(|p, q| p.0 == q.0)
-        .for_each(|run| run.sort_unstable_by_key(|p| p.1));
+/// The runs of tied x (`start..end`, longer than one) in sorted x.
+fn tie_runs(xs: &[f64]) -> Vec<(usize, usize)> {
     let mut ties = Vec::new();
     let mut start = 0;
-    for j in 1..=pairs.len() {
-        if j == pairs.len() || pairs[j].0 != pairs[start].0 {
+    for j in 1..=xs.len() {
+        if j == xs.len() || xs[j] != xs[start] {
             if j - start > 1 {
                 ties.push((start, j));
             }
             start = j;
         }
     }
-    let (xs, ys) = pairs
-        .into_par_iter()
-        .map(|(a, b)| (unkey(a), unkey(b)))
-        .unzip();
-    (xs, ys, ties)
-}
-
-const SIGN: u64 = 1 << 63;
-
-/// An integer whose order is that of the finite double `x` (`-0.0` taken as `0.0`, as in
-/// every comparison of doubles).
-fn key(x: f64) -> u64 {
-    let b = (x + 0.0).to_bits();
-    if b & SIGN != 0 {
-        !b
-    } else {
-        b | SIGN
-    }
-}
-
-/// The inverse of [`key`].
-fn unkey(k: u64) -> f64 {
-    f64::from_bits(if k & SIGN != 0 { k & !SIGN } else { !k })
+    ties
 }
 
 /// `(eps s)^2` with s = `x_(3i) - x_(i)`, i = floor(n/4) (1-based ranks), the two ranks moved
@@ -376,28 +341,6 @@ fn variable_span(
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn keys_keep_the_order_of_doubles() {
-        // IEEE 754 order, checked on neighbours of every sign and size.
-        let v = [
-            f64::MIN,
-            -1e300,
-            -1.0,
-            -1e-310,
-            0.0,
-            1e-310,
-            1.0,
-            2.5,
-            1e300,
-            f64::MAX,
-        ];
-        for w in v.windows(2) {
-            assert!(key(w[0]) < key(w[1]));
-        }
-        assert_eq!(key(-0.0), key(0.0));
-        assert!(v.iter().all(|&a| unkey(key(a)) == a));
-    }
 
     #[test]
     fn spans_are_the_single_precision_constants() {
