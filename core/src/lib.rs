@@ -23,6 +23,7 @@ pub mod panel;
 pub mod quantile;
 pub mod rng;
 pub mod simulate;
+pub mod spline;
 
 pub use describe::{describe, Description, Pattern};
 pub use error::{Error, Result};
