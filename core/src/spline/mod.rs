@@ -44,14 +44,14 @@
 //!
 //! At least 3 distinct x are needed (one interior knot, so a penalty has something to act on).
 
-mod banded;
+mod filter;
 mod search;
 
 use serde::Serialize;
 
 use crate::curve::{check_xy, Curve, Diagnostics, OptionValue};
 use crate::error::{Error, Result};
-use banded::{Sum, System};
+use filter::{Sum, System};
 
 /// Fewest distinct x values a smoothing spline accepts.
 pub const MIN_DISTINCT_X: usize = 3;
@@ -277,9 +277,9 @@ fn fit(
         wy.add(a * b);
     }
     let ymean = wy.value() / n_obs;
-    let h = ux.windows(2).map(|p| (p[1] - p[0]) / range).collect();
+    let t = ux.iter().map(|v| (v - ux[0]) / range).collect();
     let yc: Vec<f64> = ybar.iter().map(|v| v - ymean).collect();
-    let sys = System::new(h, w, &yc);
+    let sys = System::new(t, w, &yc);
     drop(yc);
     let to_user = |l: f64| l * range * range * range;
 
@@ -301,12 +301,9 @@ fn fit(
             (e.lambda, it)
         }
     };
-    let mut gamma = Vec::new();
-    let e = sys.eval(lambda_t, Some(&mut gamma));
-    let fitted: Vec<f64> = (0..n)
-        .map(|i| ybar[i] - sys.residual(lambda_t, &gamma, i))
-        .collect();
-    let leverages = want_leverages.then(|| sys.leverages(lambda_t));
+    let (e, residuals, lev) = sys.fit(lambda_t, want_leverages);
+    let fitted: Vec<f64> = ybar.iter().zip(&residuals).map(|(v, r)| v - r).collect();
+    let leverages = want_leverages.then_some(lev);
     // A given λ is reported as given, not as a round trip through the internal scale.
     let lambda = match options.penalty {
         Penalty::Lambda(l) => l,

@@ -5,7 +5,7 @@
 //! The search variable is `u = log10(λ · ratio)` with `ratio = tr M / tr R` on the internal
 //! scale, so `u = 0` is where the penalty starts to bite at the finest spacing whatever n is.
 
-use super::banded::{Eval, System};
+use super::filter::{Eval, System};
 
 /// Absolute tolerance on a requested df.
 pub(crate) const DF_TOL: f64 = 1e-9;
@@ -51,7 +51,7 @@ pub(crate) fn solve_df(sys: &System, n_obs: f64, target: f64) -> (Eval, usize) {
     let mut evals = 0usize;
     let mut f = |u: f64| {
         evals += 1;
-        let e = sys.eval(lambda_of(u, sys.ratio), None);
+        let e = sys.eval(lambda_of(u, sys.ratio));
         // Both forms decrease in u; use the one free of cancellation.
         let v = if target <= 0.5 * n {
             e.df - target
@@ -169,7 +169,7 @@ pub(crate) fn search_gcv(sys: &System, n_obs: f64, ssw: f64) -> (Eval, usize, Gc
     let mut evals = 0usize;
     let mut score = |u: f64| {
         evals += 1;
-        let e = sys.eval(lambda_of(u, sys.ratio), None);
+        let e = sys.eval(lambda_of(u, sys.ratio));
         (gcv(&e, n_obs, n, ssw), e)
     };
     let mut grid: Vec<(f64, f64, Eval)> = Vec::new();
