@@ -194,12 +194,17 @@ impl System {
     }
 
     /// One forward and one backward pass; `visit(i, H_ii, 1 - H_ii, ȳ_i - f_i)` on the
-    /// internal y scale, from the last point to the first.
+    /// internal y scale, each point once, in no particular order.
+    ///
+    /// The two filters run in the same loop (two independent recursions, so the processor
+    /// overlaps them): first forward over the left half and backward over the right half,
+    /// storing the predicted information; then each continues into the other half, combining
+    /// with what is stored there. One store of n entries serves both.
     fn run(&self, lambda: f64, mut visit: impl FnMut(usize, f64, f64, f64)) {
         let n = self.n();
         if lambda == 0.0 {
             // Interpolation: every leverage is 1 and every residual 0.
-            for i in (0..n).rev() {
+            for i in 0..n {
                 visit(i, 1.0, 0.0, 0.0);
             }
             return;
@@ -207,36 +212,61 @@ impl System {
         let q = 1.0 / lambda.max(LAMBDA_T_MIN);
         let (t, w, y) = (&self.t, &self.w, &self.y);
         let mut store = self.store.borrow_mut();
-        store.clear();
-        store.reserve(n);
-        let mut a = Info::default();
-        for i in 0..n {
-            store.push(a);
+        // Every entry is written before it is read, so the store is only sized, never cleared.
+        store.resize(n, Info::default());
+        let mid = n / 2;
+        // a: forward, predicted at point i (points < i); b: backward in reflected coordinates,
+        // predicted at point j (points > j).
+        let (mut a, mut b) = (Info::default(), Info::default());
+        for k in 0..(n - mid) {
+            if k < mid {
+                store[k] = a;
+                a.observe(w[k], y[k]);
+                a = a.predict(t[k + 1] - t[k], q);
+            }
+            let j = n - 1 - k;
+            store[j] = b;
+            b.observe(w[j], y[j]);
+            b = b.predict(t[j] - t[j - 1], q);
+        }
+        // Now a is predicted at mid and b at mid - 1.
+        for k in 0..(n - mid) {
+            let i = mid + k;
+            let (h, oml, r) = combine(&a, &store[i], w[i], y[i]);
+            visit(i, h, oml, r);
             if i + 1 < n {
                 a.observe(w[i], y[i]);
                 a = a.predict(t[i + 1] - t[i], q);
             }
-        }
-        let mut b = Info::default();
-        for i in (0..n).rev() {
-            let a = &store[i];
-            // b is in reflected coordinates (f, -f'): flip the signs of its f' parts.
-            let sfd = a.fd - b.fd;
-            let sdd = a.dd + b.dd;
-            let det = a.det + b.det + a.ff * b.dd + a.dd * b.ff + 2.0 * a.fd * b.fd;
-            let zf = a.zf + b.zf;
-            let zd = a.zd - b.zd;
-            let v = sdd / det;
-            let m = (sdd * zf - sfd * zd) / det;
-            let wv = w[i] * v;
-            let oml = 1.0 / (1.0 + wv);
-            visit(i, wv * oml, oml, (y[i] - m) * oml);
-            if i > 0 {
-                b.observe(w[i], y[i]);
-                b = b.predict(t[i] - t[i - 1], q);
+            if k < mid {
+                let j = mid - 1 - k;
+                let (h, oml, r) = combine(&store[j], &b, w[j], y[j]);
+                visit(j, h, oml, r);
+                if j > 0 {
+                    b.observe(w[j], y[j]);
+                    b = b.predict(t[j] - t[j - 1], q);
+                }
             }
         }
     }
+}
+
+/// The leave-one-out posterior at a point from the forward `a` and reflected backward `b`
+/// predicted information, then `(H_ii, 1 - H_ii, ȳ_i - f_i)`.
+#[inline]
+fn combine(a: &Info, b: &Info, w: f64, y: f64) -> (f64, f64, f64) {
+    // b's f' parts change sign in the caller's orientation; a.fd, b.fd <= 0 keep every term of
+    // the determinant non-negative.
+    let sfd = a.fd - b.fd;
+    let sdd = a.dd + b.dd;
+    let det = a.det + b.det + a.ff * b.dd + a.dd * b.ff + 2.0 * a.fd * b.fd;
+    let zf = a.zf + b.zf;
+    let zd = a.zd - b.zd;
+    // V = sdd / det and m = (sdd zf - sfd zd) / det; with g = 1 / (det + w sdd) = 1 / (det (1 + w V)),
+    // H_ii = w sdd g, 1 - H_ii = det g and ȳ - f = (ȳ - m) / (1 + w V) = (ȳ det - det m) g.
+    let wv = w * sdd;
+    let g = 1.0 / (det + wv);
+    (wv * g, det * g, (y * det - (sdd * zf - sfd * zd)) * g)
 }
 
 /// Neumaier's compensated sum: traces over 10^7 terms keep their last digits.

@@ -212,13 +212,10 @@ struct Collapsed {
 }
 
 fn collapse(x: &[f64], y: &[f64]) -> Collapsed {
-    // Sorting by (x, y) makes tie sums, and so the whole fit, independent of row order.
-    let mut order: Vec<usize> = (0..x.len()).collect();
-    order.sort_unstable_by(|&a, &b| {
-        (x[a] + 0.0)
-            .total_cmp(&(x[b] + 0.0))
-            .then(y[a].total_cmp(&y[b]))
-    });
+    // Sorting (x, y) pairs makes tie sums, and so the whole fit, independent of row order;
+    // sorting the pairs themselves rather than an index keeps the sort in cache.
+    let mut pairs: Vec<(f64, f64)> = x.iter().map(|v| v + 0.0).zip(y.iter().copied()).collect();
+    pairs.sort_unstable_by(|a, b| a.0.total_cmp(&b.0).then(a.1.total_cmp(&b.1)));
     let mut c = Collapsed {
         x: Vec::new(),
         w: Vec::new(),
@@ -226,24 +223,17 @@ fn collapse(x: &[f64], y: &[f64]) -> Collapsed {
         ssw: 0.0,
     };
     let mut ssw = Sum::default();
-    let mut start = 0;
-    while start < order.len() {
-        let xv = x[order[start]] + 0.0;
-        let mut end = start + 1;
-        while end < order.len() && x[order[end]] == xv {
-            end += 1;
-        }
-        let k = (end - start) as f64;
-        let mean = order[start..end].iter().map(|&i| y[i]).sum::<f64>() / k;
-        if end - start > 1 {
-            for &i in &order[start..end] {
-                ssw.add((y[i] - mean) * (y[i] - mean));
+    for tie in pairs.chunk_by(|a, b| a.0 == b.0) {
+        let k = tie.len() as f64;
+        let mean = tie.iter().map(|p| p.1).sum::<f64>() / k;
+        if tie.len() > 1 {
+            for p in tie {
+                ssw.add((p.1 - mean) * (p.1 - mean));
             }
         }
-        c.x.push(xv);
+        c.x.push(tie[0].0);
         c.w.push(k);
         c.ybar.push(mean);
-        start = end;
     }
     c.ssw = ssw.value();
     c

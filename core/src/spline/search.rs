@@ -11,9 +11,14 @@ use super::filter::{Eval, System};
 pub(crate) const DF_TOL: f64 = 1e-9;
 /// Tolerance on `u = log10 λ + const` when minimising GCV (λ to about 2e-6 relative).
 const GCV_UTOL: f64 = 1e-6;
-/// First grid point of the GCV scan; at `u = -4` the fit is within about 0.1% of interpolation.
-const GRID_START: f64 = -4.0;
-/// The GCV scan stops once the fit is this close to the least-squares line in df.
+/// Lowest grid point of the GCV scan unless the scan has to reach further down: the onset of
+/// smoothing at the mean spacing (df about 0.6 n for equally spaced x).
+const GRID_START: f64 = 0.0;
+/// Spacing of the GCV grid in decades of λ: about a factor 3 in df where `df ∝ λ^{-1/4}`.
+const GRID_STEP: f64 = 2.0;
+/// The GCV scan stops once the fit is this close to the least-squares line in df ...
+const GRID_TOP_DF: f64 = 1e-2;
+/// ... or, while its top point is the best, this close.
 const GRID_FLAT_DF: f64 = 1e-5;
 /// Hard limits on `u`, far beyond any penalty that changes the fit in double precision.
 const U_MIN: f64 = -60.0;
@@ -172,33 +177,28 @@ pub(crate) fn search_gcv(sys: &System, n_obs: f64, ssw: f64) -> (Eval, usize, Gc
         let e = sys.eval(lambda_of(u, sys.ratio));
         (gcv(&e, n_obs, n, ssw), e)
     };
+    // Up from near interpolation to near the line, every GRID_STEP decades of λ.
     let mut grid: Vec<(f64, f64, Eval)> = Vec::new();
     let mut u = GRID_START;
-    // Reach down until the fit is within 0.1% of interpolation in df (few steps at most).
     loop {
-        let (g, e) = score(u);
-        if e.n_minus_df <= 1e-3 * (n - 2.0) || u <= U_MIN {
-            grid.push((u, g, e));
-            break;
-        }
-        u -= 1.0;
-    }
-    loop {
-        u += 1.0;
         let (g, e) = score(u);
         grid.push((u, g, e));
-        if e.df - 2.0 <= GRID_FLAT_DF || u >= U_MAX {
+        let top_best = best_of(&grid) == grid.len() - 1;
+        let flat = if top_best { GRID_FLAT_DF } else { GRID_TOP_DF };
+        if e.df - 2.0 <= flat || u >= U_MAX {
             break;
         }
+        u += GRID_STEP;
     }
-    // The first minimum among finite scores (a NaN score never wins).
-    let k = (0..grid.len())
-        .filter(|&i| grid[i].1.is_finite())
-        .fold(None, |best: Option<usize>, i| match best {
-            Some(j) if grid[j].1 <= grid[i].1 => Some(j),
-            _ => Some(i),
-        })
-        .unwrap_or(0);
+    let mut k = best_of(&grid);
+    // While the lowest point is the best, reach further down, until the fit is within 0.1% of
+    // interpolation in df (clustered x need penalties far below the onset at mean spacing).
+    while k == 0 && grid[0].2.n_minus_df > 1e-3 * (n - 2.0) && grid[0].0 > U_MIN {
+        let u = grid[0].0 - GRID_STEP;
+        let (g, e) = score(u);
+        grid.insert(0, (u, g, e));
+        k = best_of(&grid);
+    }
     let last = grid.len() - 1;
     let boundary = if k == 0 {
         Some("lower")
@@ -218,6 +218,17 @@ pub(crate) fn search_gcv(sys: &System, n_obs: f64, ssw: f64) -> (Eval, usize, Gc
         boundary,
     };
     (best, evals, search)
+}
+
+/// Index of the first minimum among finite scores (a NaN score never wins).
+fn best_of(grid: &[(f64, f64, Eval)]) -> usize {
+    (0..grid.len())
+        .filter(|&i| grid[i].1.is_finite())
+        .fold(None, |best: Option<usize>, i| match best {
+            Some(j) if grid[j].1 <= grid[i].1 => Some(j),
+            _ => Some(i),
+        })
+        .unwrap_or(0)
 }
 
 /// Brent's minimiser on `[a, b]` started from a known point `x0` inside it.
