@@ -13,21 +13,26 @@
 //! sum of squares, which does not depend on `f` and is added back into the reported RSS. λ is on
 //! the x scale the caller gave: the criterion of scipy's `make_smoothing_spline(x, y, lam=λ)`.
 //!
-//! **Computation.** With `h_j` the spacings, `Q` (n × (n-2), tridiagonal) and `R` ((n-2) ×
-//! (n-2), tridiagonal) as in Green & Silverman §2.1.2, the second derivatives at the interior
-//! knots solve `(R + λ Qᵀ W⁻¹ Q) γ = Qᵀ ȳ` and the fit is `f = ȳ - λ W⁻¹ Q γ`. The pentadiagonal
-//! matrix is factored as `L D Lᵀ` in O(n). The hat matrix `H = (W + λ Q R⁻¹ Qᵀ)⁻¹ W` has
-//! leverages `H_ii = 1 - λ (Q B⁻¹ Qᵀ)_ii / w_i`, which need only the band of `B⁻¹` that the
-//! Hutchinson & de Hoog (1985, Numer. Math. 47:99-106) recursion gives in O(n). The df is
-//! `tr H = 2 + tr(B⁻¹ R)` (and `n - tr H = λ tr(B⁻¹ Qᵀ W⁻¹ Q)`), so neither end loses digits
-//! to cancellation. With ties, the trace of the hat matrix on the distinct x with weights equals
-//! the trace of the full n-observation smoother, so df means the same in both views (and is
-//! what R's `smooth.spline` reports).
+//! **Computation.** The spline is the posterior mean of `f` when `(f, f')` is an integrated
+//! Wiener process with diffusion `1/λ` under a flat prior on the initial state, observed at
+//! the distinct x with noise variance `1/w` (Wecker & Ansley 1983, JASA 78:81-89). It is
+//! computed in O(n) by a forward information filter and the same filter on the reflected data
+//! (the two-filter smoother, Fraser & Potter 1969): at each point the two predicted
+//! informations give the leave-one-out posterior (variance `V_i`, mean `m_i`), whence the
+//! leverage `H_ii = w_i V_i / (1 + w_i V_i)` (Wahba 1983, JRSS B 45:133-150: the posterior
+//! covariance at the data is `H W⁻¹`), `1 - H_ii = 1 / (1 + w_i V_i)` and the residual
+//! `ȳ_i - f_i = (ȳ_i - m_i) / (1 + w_i V_i)`; `df = Σ H_ii` and `n - df = Σ (1 - H_ii)`. Zero
+//! information is the flat prior exactly, and every information entry and determinant is a
+//! sum of non-negative terms, so nothing cancels whatever n and λ (unlike Reinsch's normal
+//! equations, whose condition grows as n⁴). With ties, the trace of the hat matrix on the
+//! distinct x with weights equals the trace of the full n-observation smoother, so df means
+//! the same in both views (and is what R's `smooth.spline` reports).
 //!
-//! **Scaling.** x is mapped to `t = (x - x_min) / r`, `r = x_max - x_min`, and ȳ is centred.
-//! Since `∫ f''(x)² dx = r⁻³ ∫ f''(t)² dt`, the internal penalty is `λ_t = λ / r³`. The
-//! search runs on `u = log10(λ_t · tr M / tr R)`, which puts the onset of smoothing near
-//! `u = 0` for any n.
+//! **Scaling.** x is mapped to `t = (x - x_min) / r`, `r = x_max - x_min`, and ȳ is centred and
+//! divided by its weighted rms. Since `∫ f''(x)² dx = r⁻³ ∫ f''(t)² dt`, the internal penalty is
+//! `λ_t = λ / r³`; values below 1e-90 are raised to 1e-90, where the fit is the interpolant to
+//! double precision. The search runs on `u = log10(λ_t (π (n - 1))⁴ / N)`, so `u = 0` is where
+//! the equally spaced approximation `df ≈ (N / λ_t)^{1/4} / π + 1` reaches n.
 //!
 //! **Choosing λ.**
 //! - [`Penalty::Lambda`]: λ > 0 as given.
@@ -38,9 +43,10 @@
 //!   Numer. Math. 31:377-403), with `N` the number of observations and `RSS` over all of
 //!   them, including the within-tie sum of squares: the GCV of the full-data smoother, whose
 //!   trace is df. It is the same criterion as R's `smooth.spline` with `cv = FALSE`. It is
-//!   minimised on `u` in [-4, the point where df is within 1e-5 of 2] by a decade grid, then by
-//!   Brent's minimiser between the neighbours of the best grid point; when that point is an end
-//!   of the scan the settings say so (`gcv_boundary`).
+//!   scanned every 2 decades of λ from `u = 0` up to where df is within 0.01 of 2 (1e-5 while
+//!   the top point is the best), and further down while the lowest point is the best (until
+//!   `n - df <= 0.001 (n - 2)`); then Brent's minimiser runs between the neighbours of the best
+//!   grid point. When that point is an end of the scan the settings say so (`gcv_boundary`).
 //!
 //! At least 3 distinct x are needed (one interior knot, so a penalty has something to act on).
 
@@ -211,11 +217,24 @@ struct Collapsed {
     ssw: f64,
 }
 
+/// An integer with the order of `f64::total_cmp`.
+fn order_key(v: f64) -> i64 {
+    let b = v.to_bits() as i64;
+    b ^ ((((b >> 63) as u64) >> 1) as i64)
+}
+
 fn collapse(x: &[f64], y: &[f64]) -> Collapsed {
     // Sorting (x, y) pairs makes tie sums, and so the whole fit, independent of row order;
     // sorting the pairs themselves rather than an index keeps the sort in cache.
     let mut pairs: Vec<(f64, f64)> = x.iter().map(|v| v + 0.0).zip(y.iter().copied()).collect();
-    pairs.sort_unstable_by(|a, b| a.0.total_cmp(&b.0).then(a.1.total_cmp(&b.1)));
+    // Finite x (checked) with -0 made +0 order as their bit patterns mapped to the integer
+    // order, a cheaper comparison; then each tie is ordered by y.
+    pairs.sort_unstable_by_key(|p| order_key(p.0));
+    for tie in pairs.chunk_by_mut(|a, b| a.0 == b.0) {
+        if tie.len() > 1 {
+            tie.sort_unstable_by(|a, b| a.1.total_cmp(&b.1));
+        }
+    }
     let mut c = Collapsed {
         x: Vec::new(),
         w: Vec::new(),

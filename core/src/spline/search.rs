@@ -1,16 +1,17 @@
-//! Choosing the penalty: a target df by Brent's root finder on log λ, GCV by a decade grid and
+//! Choosing the penalty: a target df by Brent's root finder on log λ, GCV by a coarse grid and
 //! Brent's minimiser (Brent 1973, *Algorithms for Minimization without Derivatives*, ch. 4
-//! and 5).
+//! and 5). Each evaluation is one O(n) fit.
 //!
-//! The search variable is `u = log10(λ · ratio)` with `ratio = tr M / tr R` on the internal
-//! scale, so `u = 0` is where the penalty starts to bite at the finest spacing whatever n is.
+//! The search variable is `u = log10(λ · ratio)` with `ratio = (π (n - 1))⁴ / N` on the
+//! internal scale, so `u = 0` is where the penalty starts to bite at the mean spacing whatever
+//! n is, and `df ∝ 10^{-u/4}` between the ends.
 
 use super::filter::{Eval, System};
 
 /// Absolute tolerance on a requested df.
 pub(crate) const DF_TOL: f64 = 1e-9;
-/// Tolerance on `u = log10 λ + const` when minimising GCV (λ to about 2e-6 relative).
-const GCV_UTOL: f64 = 1e-6;
+/// Tolerance on `u = log10 λ + const` when minimising GCV (λ to about 2e-5 relative).
+const GCV_UTOL: f64 = 1e-5;
 /// Lowest grid point of the GCV scan unless the scan has to reach further down: the onset of
 /// smoothing at the mean spacing (df about 0.6 n for equally spaced x).
 const GRID_START: f64 = 0.0;
@@ -207,9 +208,21 @@ pub(crate) fn search_gcv(sys: &System, n_obs: f64, ssw: f64) -> (Eval, usize, Gc
     } else {
         None
     };
-    let lo = grid[k.saturating_sub(1)].0;
-    let hi = grid[(k + 1).min(last)].0;
-    let (_, best) = fmin(&mut score, lo, hi, (grid[k].0, grid[k].1, grid[k].2));
+    let (lo, hi) = (k.saturating_sub(1), (k + 1).min(last));
+    // The neighbours as Brent's w (the lower score) and v.
+    let (nw, nv) = if grid[lo].1 <= grid[hi].1 || hi == k {
+        (lo, hi)
+    } else {
+        (hi, lo)
+    };
+    let (_, best) = fmin(
+        &mut score,
+        grid[lo].0,
+        grid[hi].0,
+        (grid[k].0, grid[k].1, grid[k].2),
+        (grid[nw].0, grid[nw].1),
+        (grid[nv].0, grid[nv].1),
+    );
     let search = GcvSearch {
         lambda_range: [
             lambda_of(grid[0].0, sys.ratio),
@@ -231,18 +244,23 @@ fn best_of(grid: &[(f64, f64, Eval)]) -> usize {
         .unwrap_or(0)
 }
 
-/// Brent's minimiser on `[a, b]` started from a known point `x0` inside it.
+/// Brent's minimiser on `[a, b]` started from a known best point `x0` inside it and two more
+/// known points (`w0` second best, `v0` the other): the first step can then be parabolic
+/// instead of golden, which saves several fits.
 fn fmin(
     f: &mut impl FnMut(f64) -> (f64, Eval),
     mut a: f64,
     mut b: f64,
     (x0, f0, e0): (f64, f64, Eval),
+    (w0, fw0): (f64, f64),
+    (v0, fv0): (f64, f64),
 ) -> (f64, Eval) {
     let golden = 0.5 * (3.0 - 5f64.sqrt());
-    let (mut x, mut w, mut v) = (x0, x0, x0);
-    let (mut fx, mut fw, mut fv) = (f0, f0, f0);
+    let (mut x, mut w, mut v) = (x0, w0, v0);
+    let (mut fx, mut fw, mut fv) = (f0, fw0, fv0);
     let mut ex = e0;
-    let (mut d, mut e) = (0.0f64, 0.0f64);
+    // A previous step as long as the bracket lets the parabola through on the first pass.
+    let (mut d, mut e) = (0.0f64, b - a);
     for _ in 0..200 {
         let xm = 0.5 * (a + b);
         let tol1 = f64::EPSILON.sqrt() * 1e-3 * x.abs() + GCV_UTOL / 3.0;
