@@ -27,6 +27,7 @@ pub mod quantile;
 pub mod rng;
 pub mod simulate;
 pub mod smoother;
+pub mod spline;
 pub mod supsmu;
 pub mod tune;
 

@@ -8,6 +8,7 @@ use crate::curve::{Curve, OptionValue};
 use crate::error::{Error, Result};
 use crate::kernel::{kernel_smooth, KernelOptions};
 use crate::lowess::{lowess, LowessOptions};
+use crate::spline::{smoothing_spline, SplineOptions};
 use crate::supsmu::{super_smoother, SuperSmootherOptions};
 
 /// A smoother family with its settings.
@@ -30,6 +31,8 @@ pub enum Smoother {
     Lowess(LowessOptions),
     /// Nadaraya-Watson or local-linear kernel smoother.
     Kernel(KernelOptions),
+    /// Cubic smoothing spline.
+    Spline(SplineOptions),
     /// Friedman's super smoother.
     Super(SuperSmootherOptions),
 }
@@ -46,6 +49,7 @@ impl Smoother {
         match family {
             "lowess" => Ok(Smoother::Lowess(LowessOptions::default())),
             "kernel" => Ok(Smoother::Kernel(KernelOptions::default())),
+            "spline" => Ok(Smoother::Spline(SplineOptions::default())),
             "super" => Ok(Smoother::Super(SuperSmootherOptions::default())),
             other => Err(Error::option(
                 "smoother",
@@ -75,6 +79,7 @@ impl Smoother {
         match self {
             Smoother::Lowess(o) => o.set(name, value),
             Smoother::Kernel(o) => o.set(name, value),
+            Smoother::Spline(o) => o.set(name, value),
             Smoother::Super(o) => o.set(name, value),
         }
     }
@@ -84,6 +89,7 @@ impl Smoother {
         match self {
             Smoother::Lowess(_) => "lowess",
             Smoother::Kernel(_) => "kernel",
+            Smoother::Spline(_) => "spline",
             Smoother::Super(_) => "super",
         }
     }
@@ -93,6 +99,7 @@ impl Smoother {
         match self {
             Smoother::Lowess(_) | Smoother::Super(_) => "span",
             Smoother::Kernel(_) => "bandwidth",
+            Smoother::Spline(_) => "df",
         }
     }
 
@@ -104,6 +111,7 @@ impl Smoother {
         match self {
             Smoother::Lowess(o) => lowess(x, y, o),
             Smoother::Kernel(o) => kernel_smooth(x, y, o),
+            Smoother::Spline(o) => smoothing_spline(x, y, o),
             Smoother::Super(o) => super_smoother(x, y, o),
         }
     }
