@@ -69,6 +69,9 @@ fixtures-check: setup
 	Rscript tests/reference/lowess_r.R --check
 	$(PY) tests/reference/lowess_py.py --check
 	Rscript tests/reference/supsmu_r.R --check
+	Rscript tests/reference/spline_r.R --check
+	$(PY) tests/reference/spline_py.py --check
+	$(PY) tests/reference/spline_exact.py --check
 
 # Speed: criterion per smoother, then ours vs the reference libraries side by side.
 bench: cli python r
