@@ -352,50 +352,48 @@ fn local_fit(s0: f64, s1: f64, s2: f64, t0: f64, t1: f64, degree: u8) -> f64 {
     t0 / s0
 }
 
-/// A sum kept as two doubles (Neumaier), so adding and removing many terms loses nothing.
+/// Four running sums kept as two doubles each, so adding and removing many terms loses
+/// nothing: each addition's rounding error is recovered exactly by Knuth's branch-free TwoSum
+/// and carried along. The lanes are independent, so the compiler can update them together.
 #[derive(Clone, Copy, Default)]
-struct Sum {
-    hi: f64,
-    lo: f64,
+struct Sums {
+    hi: [f64; 4],
+    lo: [f64; 4],
 }
 
-impl Sum {
-    fn add(&mut self, v: f64) {
-        let s = self.hi + v;
-        self.lo += if self.hi.abs() >= v.abs() {
-            (self.hi - s) + v
-        } else {
-            (v - s) + self.hi
-        };
-        self.hi = s;
+impl Sums {
+    fn add(&mut self, v: [f64; 4]) {
+        for k in 0..4 {
+            let s = self.hi[k] + v[k];
+            let bv = s - self.hi[k];
+            self.lo[k] += (self.hi[k] - (s - bv)) + (v[k] - bv);
+            self.hi[k] = s;
+        }
     }
-    fn value(self) -> f64 {
-        self.hi + self.lo
+    fn value(&self, k: usize) -> f64 {
+        self.hi[k] + self.lo[k]
     }
 }
 
-/// Box kernel on |x - t| < a, exact: the window slides over sorted x as t increases. Sums are
-/// kept about the data's mid-range so the shift to each t cancels little.
+/// Box kernel on |x - t| < a, exact: the window slides over sorted x as t increases. Sums of
+/// x, x^2, y and x y are kept about the data's mid-range so the shift to each t cancels little;
+/// the count is the window's length.
 fn box_smooth(xs: &[f64], ys: &[f64], at: &[f64], a: f64, degree: u8) -> Vec<f64> {
     let c = 0.5 * (xs[0] + xs[xs.len() - 1]);
     let (mut lo, mut hi) = (0usize, 0usize);
-    let mut sums = [Sum::default(); 5]; // x^0, x^1, x^2, y, x y (x about c)
-    let update = |sums: &mut [Sum; 5], i: usize, sign: f64| {
+    let mut sums = Sums::default();
+    let terms = |i: usize, sign: f64| {
         let (u, v) = (xs[i] - c, ys[i]);
-        sums[0].add(sign);
-        sums[1].add(sign * u);
-        sums[2].add(sign * u * u);
-        sums[3].add(sign * v);
-        sums[4].add(sign * u * v);
+        [sign * u, sign * u * u, sign * v, sign * u * v]
     };
     at.iter()
         .map(|&t| {
             while hi < xs.len() && xs[hi] - t < a {
-                update(&mut sums, hi, 1.0);
+                sums.add(terms(hi, 1.0));
                 hi += 1;
             }
             while lo < hi && t - xs[lo] >= a {
-                update(&mut sums, lo, -1.0);
+                sums.add(terms(lo, -1.0));
                 lo += 1;
             }
             let n = (hi - lo) as f64;
@@ -403,8 +401,7 @@ fn box_smooth(xs: &[f64], ys: &[f64], at: &[f64], a: f64, degree: u8) -> Vec<f64
                 return f64::NAN;
             }
             let d = t - c; // shift the sums from c to t
-            let (m1, m2) = (sums[1].value(), sums[2].value());
-            let (t0, t1) = (sums[3].value(), sums[4].value());
+            let (m1, m2, t0, t1) = (sums.value(0), sums.value(1), sums.value(2), sums.value(3));
             let s1 = m1 - d * n;
             let s2 = m2 - 2.0 * d * m1 + d * d * n;
             local_fit(n, s1, s2, t0, t1 - d * t0, degree)
