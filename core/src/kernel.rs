@@ -363,11 +363,11 @@ struct Sums {
 
 impl Sums {
     fn add(&mut self, v: [f64; 4]) {
-        for k in 0..4 {
-            let s = self.hi[k] + v[k];
-            let bv = s - self.hi[k];
-            self.lo[k] += (self.hi[k] - (s - bv)) + (v[k] - bv);
-            self.hi[k] = s;
+        for ((hi, lo), v) in self.hi.iter_mut().zip(&mut self.lo).zip(v) {
+            let s = *hi + v;
+            let bv = s - *hi;
+            *lo += (*hi - (s - bv)) + (v - bv);
+            *hi = s;
         }
     }
     fn value(&self, k: usize) -> f64 {
