@@ -21,26 +21,39 @@ fn temp_csv(name: &str, text: &str) -> PathBuf {
     path
 }
 
-fn stderr(o: &Output) -> String {
-    String::from_utf8_lossy(&o.stderr).trim_end().to_string()
-}
-
-fn describe_json(path: &Path, extra: &[&str]) -> Value {
-    let p = path.to_str().unwrap();
+/// `trajweave VERB FILE --subject id --time t --response y EXTRA...`, the columns every test file uses.
+fn on_file(verb: &str, path: &Path, extra: &[&str]) -> Output {
     let mut args = vec![
-        "describe",
-        p,
+        verb,
+        path.to_str().unwrap(),
         "--subject",
         "id",
         "--time",
         "t",
         "--response",
         "y",
-        "--format",
-        "json",
     ];
     args.extend_from_slice(extra);
-    let o = trajweave(&args);
+    trajweave(&args)
+}
+
+/// The line every front prints for a fixture case: `error [kind]: message`.
+fn expected_error(case: &Value) -> String {
+    format!(
+        "error [{}]: {}",
+        case["kind"].as_str().unwrap(),
+        case["message"].as_str().unwrap()
+    )
+}
+
+fn stderr(o: &Output) -> String {
+    String::from_utf8_lossy(&o.stderr).trim_end().to_string()
+}
+
+fn describe_json(path: &Path, extra: &[&str]) -> Value {
+    let mut args = vec!["--format", "json"];
+    args.extend_from_slice(extra);
+    let o = on_file("describe", path, &args);
     assert!(o.status.success(), "{}", stderr(&o));
     serde_json::from_slice(&o.stdout).unwrap()
 }
@@ -69,16 +82,7 @@ fn describe_table_and_json() {
     assert_eq!(d["visits_per_subject"]["median"], 2.0);
     assert_eq!(d["grid"]["patterns"]["complete"], 1);
     assert_eq!(d["grid"]["patterns"]["monotone"], 1);
-    let o = trajweave(&[
-        "describe",
-        path.to_str().unwrap(),
-        "--subject",
-        "id",
-        "--time",
-        "t",
-        "--response",
-        "y",
-    ]);
+    let o = on_file("describe", &path, &[]);
     let text = String::from_utf8(o.stdout).unwrap();
     assert!(text.starts_with("subjects               2\n"), "{text}");
 }
@@ -164,23 +168,13 @@ fn bad_input_fixture_through_csv() {
             .get("missing")
             .and_then(Value::as_str)
             .unwrap_or("error");
-        let mut args = vec![
-            "describe",
-            p,
-            "--subject",
-            "id",
-            "--time",
-            "t",
-            "--response",
-            "y",
-        ];
-        args.extend(["--missing", missing, "--format", "json"]);
+        let mut args = vec!["--missing", missing, "--format", "json"];
         if let Some(m) = case.get("covariates").and_then(Value::as_object) {
             for name in m.keys() {
                 args.extend(["--covariate", name.as_str()]);
             }
         }
-        let o = trajweave(&args);
+        let o = on_file("describe", &path, &args);
         assert_eq!(o.status.code(), Some(2), "{name}");
         let err = stderr(&o);
         let message = case["message"].as_str().unwrap();
@@ -207,19 +201,7 @@ fn bad_input_fixture_through_csv() {
     assert!(checked >= 11, "only {checked} cases checked");
     for case in fixture["describe_cases"].as_array().unwrap() {
         let path = temp_csv("one.csv", "id,t,y\n1,0,1\n");
-        let mut args: Vec<String> = [
-            "describe",
-            path.to_str().unwrap(),
-            "--subject",
-            "id",
-            "--time",
-            "t",
-            "--response",
-            "y",
-        ]
-        .iter()
-        .map(|s| s.to_string())
-        .collect();
+        let mut args: Vec<String> = Vec::new();
         for (key, value) in case["grid"].as_object().unwrap() {
             args.push(format!("--{key}"));
             args.push(match value {
@@ -228,13 +210,8 @@ fn bad_input_fixture_through_csv() {
             });
         }
         let args: Vec<&str> = args.iter().map(String::as_str).collect();
-        let o = trajweave(&args);
-        let expected = format!(
-            "error [{}]: {}",
-            case["kind"].as_str().unwrap(),
-            case["message"].as_str().unwrap()
-        );
-        assert_eq!(stderr(&o), expected, "{}", case["name"]);
+        let o = on_file("describe", &path, &args);
+        assert_eq!(stderr(&o), expected_error(case), "{}", case["name"]);
     }
     for case in fixture["simulate_cases"].as_array().unwrap() {
         let mut args = vec!["simulate".to_string(), "--out".into(), "-".into()];
@@ -244,43 +221,20 @@ fn bad_input_fixture_through_csv() {
         }
         let args: Vec<&str> = args.iter().map(String::as_str).collect();
         let o = trajweave(&args);
-        let expected = format!(
-            "error [{}]: {}",
-            case["kind"].as_str().unwrap(),
-            case["message"].as_str().unwrap()
-        );
-        assert_eq!(stderr(&o), expected, "{}", case["name"]);
+        assert_eq!(stderr(&o), expected_error(case), "{}", case["name"]);
     }
 }
 
 #[test]
 fn csv_errors_name_line_and_column() {
     let p = temp_csv("text.csv", "id,t,y\n1,0,1\n1,1,abc\n");
-    let o = trajweave(&[
-        "describe",
-        p.to_str().unwrap(),
-        "--subject",
-        "id",
-        "--time",
-        "t",
-        "--response",
-        "y",
-    ]);
+    let o = on_file("describe", &p, &[]);
     assert_eq!(
         stderr(&o),
         format!("error [invalid_value]: {} line 3, column `y`: \"abc\" is not a number; use a number, or leave the cell blank (or NA) for a missing value", p.display())
     );
     let p = temp_csv("ragged.csv", "id,t,y\n1,0,1\n1,1\n");
-    let o = trajweave(&[
-        "describe",
-        p.to_str().unwrap(),
-        "--subject",
-        "id",
-        "--time",
-        "t",
-        "--response",
-        "y",
-    ]);
+    let o = on_file("describe", &p, &[]);
     assert_eq!(
         stderr(&o),
         format!(
@@ -324,12 +278,11 @@ fn smooth_and_tune_kernel() {
         }
     }
     let path = temp_csv("smooth.csv", &csv);
-    let p = path.to_str().unwrap();
-    let base = ["--subject", "id", "--time", "t", "--response", "y"];
-    let mut args = vec!["smooth", p];
-    args.extend(base);
-    args.extend(["--method", "kernel", "--bandwidth", "0.8", "--at", "0,2,4"]);
-    let o = trajweave(&args);
+    let o = on_file(
+        "smooth",
+        &path,
+        &["--method", "kernel", "--bandwidth", "0.8", "--at", "0,2,4"],
+    );
     assert!(o.status.success(), "{}", stderr(&o));
     let text = String::from_utf8(o.stdout).unwrap();
     let rows: Vec<&str> = text.lines().collect();
@@ -340,42 +293,38 @@ fn smooth_and_tune_kernel() {
         let fitted: f64 = row.split(',').nth(1).unwrap().parse().unwrap();
         assert!((fitted - (2.5 + 0.5 * t)).abs() < 1e-9, "{row}");
     }
-    let mut args = vec!["smooth", p];
-    args.extend(base);
-    args.extend([
-        "--method",
-        "kernel",
-        "--bootstrap",
-        "20",
-        "--format",
-        "json",
-    ]);
-    let o = trajweave(&args);
+    let o = on_file(
+        "smooth",
+        &path,
+        &[
+            "--method",
+            "kernel",
+            "--bootstrap",
+            "20",
+            "--format",
+            "json",
+        ],
+    );
     let m: Value = serde_json::from_slice(&o.stdout).unwrap();
     assert_eq!(m["band"]["lower"].as_array().unwrap().len(), 101);
-    let mut args = vec!["tune", p];
-    args.extend(base);
-    args.extend([
-        "--method",
-        "kernel",
-        "--candidates",
-        "0.5,1,2",
-        "--format",
-        "json",
-    ]);
-    let o = trajweave(&args);
+    let o = on_file(
+        "tune",
+        &path,
+        &[
+            "--method",
+            "kernel",
+            "--candidates",
+            "0.5,1,2",
+            "--format",
+            "json",
+        ],
+    );
     let t: Value = serde_json::from_slice(&o.stdout).unwrap();
     assert_eq!(t["scheme"], "leave-one-subject-out");
     assert_eq!(t["scores"].as_array().unwrap().len(), 3);
     // Options a family does not take are refused by the core, naming the allowed ones.
-    let mut args = vec!["smooth", p];
-    args.extend(base);
-    args.extend(["--method", "kernel", "--df", "4"]);
-    let o = trajweave(&args);
+    let o = on_file("smooth", &path, &["--method", "kernel", "--df", "4"]);
     assert!(stderr(&o).starts_with("error [invalid_option]: `kernel option` = \"df\" is not allowed: use one of: bandwidth"), "{}", stderr(&o));
-    let mut args = vec!["smooth", p];
-    args.extend(base);
-    args.extend(["--method", "cubic"]);
-    let o = trajweave(&args);
+    let o = on_file("smooth", &path, &["--method", "cubic"]);
     assert_eq!(stderr(&o), "error [invalid_option]: `smoother` = \"cubic\" is not allowed: use \"lowess\", \"kernel\", \"spline\" or \"super\"");
 }
