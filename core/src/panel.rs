@@ -334,6 +334,46 @@ impl Panel {
     }
 }
 
+impl Panel {
+    /// The inverse of [`Panel::to_input_order`]: per-row values in the caller's row order (one
+    /// per input row, dropped rows included and ignored) put in panel order.
+    ///
+    /// # Examples
+    /// ```
+    /// use trajweave_core::{Missing, Panel, SubjectIds};
+    /// # fn main() -> trajweave_core::Result<()> {
+    /// let ids = SubjectIds::Int(vec![Some(2), Some(1)]);
+    /// let p = Panel::new(ids, &[0.0, 0.0], &[5.0, 7.0], vec![], Missing::Error)?;
+    /// assert_eq!(p.from_input_order("residuals", &[0.5, -0.5])?, vec![-0.5, 0.5]);
+    /// # Ok(()) }
+    /// ```
+    ///
+    /// # Errors
+    /// [`Error::LengthMismatch`] unless there is one value per input row; [`Error::NonFinite`]
+    /// for a non-finite value in a kept row (row counted from 1 in the caller's order).
+    pub fn from_input_order(&self, argument: &str, values: &[f64]) -> Result<Vec<f64>> {
+        if values.len() != self.n_input {
+            return Err(Error::LengthMismatch {
+                argument: argument.to_string(),
+                reference: "the panel's rows".into(),
+                expected: self.n_input,
+                found: values.len(),
+            });
+        }
+        self.order
+            .iter()
+            .map(|&row| {
+                let v = values[row];
+                if v.is_finite() {
+                    Ok(v)
+                } else {
+                    Err(non_finite(argument, row, v))
+                }
+            })
+            .collect()
+    }
+}
+
 fn check_len(argument: &str, found: usize, expected: usize) -> Result<()> {
     if found == expected {
         return Ok(());
