@@ -15,10 +15,13 @@
 //! ```
 #![deny(missing_docs)]
 
+pub mod bands;
+pub mod conditional;
 pub mod curve;
 pub mod describe;
 pub mod error;
 pub mod grid;
+pub mod groups;
 pub mod kernel;
 pub mod lowess;
 pub mod mean_curve;
@@ -29,6 +32,7 @@ pub mod simulate;
 pub mod smoother;
 pub mod spline;
 pub mod supsmu;
+pub mod trajectory_grid;
 pub mod tune;
 
 pub use describe::{describe, Description, Pattern};
