@@ -3,6 +3,7 @@
 
 use pyo3::prelude::*;
 
+mod covariates;
 mod describe;
 mod errors;
 mod mean_curve;
@@ -22,5 +23,11 @@ fn _trajweave(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(smoother::smoother_settings, m)?)?;
     m.add_function(wrap_pyfunction!(mean_curve::panel_mean_curve, m)?)?;
     m.add_function(wrap_pyfunction!(tune::panel_tune_smoother, m)?)?;
+    m.add_function(wrap_pyfunction!(covariates::values_equal_count_bands, m)?)?;
+    m.add_function(wrap_pyfunction!(covariates::panel_covariate_bands, m)?)?;
+    m.add_function(wrap_pyfunction!(covariates::panel_conditional_trends, m)?)?;
+    m.add_function(wrap_pyfunction!(covariates::panel_group_curves, m)?)?;
+    m.add_function(wrap_pyfunction!(covariates::panel_dropout_curves, m)?)?;
+    m.add_function(wrap_pyfunction!(covariates::panel_trajectory_grid, m)?)?;
     Ok(())
 }

@@ -7,6 +7,15 @@
 200
 """
 
+from .covariates import (
+    TrajectoryGrid,
+    conditional_trends,
+    covariate_bands,
+    dropout_curves,
+    equal_count_bands,
+    group_curves,
+    trajectory_grid,
+)
 from .describe import Description, describe
 from .errors import (
     EmptyInputError,
@@ -52,6 +61,13 @@ __all__ = [
     "mean_curve",
     "Tuning",
     "tune_smoother",
+    "equal_count_bands",
+    "covariate_bands",
+    "conditional_trends",
+    "group_curves",
+    "dropout_curves",
+    "trajectory_grid",
+    "TrajectoryGrid",
     "TrajweaveError",
     "LengthMismatchError",
     "NonFiniteError",
