@@ -5,20 +5,21 @@
 //!
 //! - [`Strategy::Random`]: k subjects uniformly without replacement (a partial Fisher-Yates
 //!   shuffle driven by stream (seed, 0) of [`crate::rng`]).
-//! - [`Strategy::Spread`]: nested equal-count stratification on two axes. The first axis is the
-//!   summary's rank (with a ranking) or the number of visits (without one; ties by panel
-//!   order); the second is follow-up length (last minus first visit time; ties by panel order).
-//!   The population, ordered on the first axis, is cut into g = round(sqrt k) strata of
-//!   consecutive subjects; stratum s receives d_s = floor(k (s + 1) / g) - floor(k s / g)
-//!   draws and holds the subjects at positions floor(m c_s / k) .. floor(m c_(s+1) / k),
-//!   c_s = floor(k s / g), so it has at least d_s subjects. Each stratum, reordered by follow-up,
-//!   is cut the same way into d_s equal-count cells, and one subject is drawn uniformly from
-//!   each cell (stream (seed, 1), cells in order). So exactly k subjects are drawn, one from each
-//!   of k cells that tile the two-way range; no cell is empty, so nothing is filled at random.
-//!   A random draw leaves gaps of about (log k) / k of the range on each axis by chance; the
-//!   stratified draw has at most one subject per cell of width about 1 / sqrt(k) on the first
-//!   axis and 1 / k within a stratum on the second, so its largest gaps are smaller (measured in
-//!   `core/tests/individuals_sample.rs`).
+//! - [`Strategy::Spread`]: a Latin-hypercube-style stratification on two axes (McKay, Beckman
+//!   & Conover 1979, Technometrics 21:239-245, applied to a finite population). The first axis
+//!   is the summary's rank (with a ranking) or the number of visits (without one); the second
+//!   is follow-up length (last minus first visit time). Each axis is cut into k equal-count
+//!   strata (positions floor(m s / k) .. floor(m (s + 1) / k) in that axis's order, ties by
+//!   panel order). The first-axis strata are visited in a seeded random order; from each, one
+//!   subject is drawn uniformly among those whose follow-up stratum is not yet covered, or, when
+//!   every one of them falls in a covered follow-up stratum (the axes are correlated), uniformly
+//!   from the whole first-axis stratum (the shortfall filled at random). Draws use stream
+//!   (seed, 1).
+//!
+//!   Why it covers better: every k-th of the first axis holds exactly one subject, so no gap
+//!   on it exceeds 2 / k, and follow-up strata are filled without repeats as far as the data
+//!   allow; a uniform draw leaves gaps of about (ln k) / k by chance and often doubles up. The
+//!   mean largest gap over 50 seeds is measured in `core/tests/individuals_sample.rs`.
 //!
 //! The sampled subjects are returned in panel (subject id) order. Same seed, same subjects, on
 //! every front and thread count (the draws are sequential).
@@ -36,7 +37,8 @@ use crate::rng::Rng;
 pub enum Strategy {
     /// Uniformly at random without replacement.
     Random,
-    /// One per cell of an equal-count grid over the summary rank (or visit count) and follow-up.
+    /// One per equal-count stratum of the summary rank (or visit count), with follow-up strata
+    /// covered without repeats where the data allow.
     Spread,
 }
 
@@ -175,25 +177,36 @@ fn spread(panel: &Panel, population: &[usize], k: usize, seed: u64) -> Vec<usize
         let rows = panel.subject_rows(i);
         t[rows.end - 1] - t[rows.start]
     };
-    let g = ((k as f64).sqrt().round() as usize).clamp(1, k);
+    // Second-axis stratum of each population position: k equal-count strata by follow-up.
+    let mut by_follow_up: Vec<(f64, usize)> = (0..m)
+        .map(|pos| (follow_up(population[pos]), pos))
+        .collect();
+    by_follow_up.sort_unstable_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
+    let mut column = vec![0; m];
+    for (j, &(_, pos)) in by_follow_up.iter().enumerate() {
+        column[pos] = j * k / m;
+    }
     let mut rng = Rng::new(seed, 1);
+    // First-axis strata visited in a seeded random order (Fisher-Yates).
+    let mut rows: Vec<usize> = (0..k).collect();
+    for j in (1..k).rev() {
+        rows.swap(j, uniform_below(&mut rng, j + 1));
+    }
+    let mut covered = vec![false; k];
     let mut chosen = Vec::with_capacity(k);
-    for s in 0..g {
-        let (c0, c1) = (cut(k, s, g), cut(k, s + 1, g));
-        let draws = c1 - c0;
-        if draws == 0 {
-            continue;
-        }
-        let mut stratum: Vec<(f64, usize)> = population[m * c0 / k..m * c1 / k]
-            .iter()
-            .map(|&i| (follow_up(i), i))
+    for s in rows {
+        let stratum = cut(m, s, k)..cut(m, s + 1, k);
+        let open: Vec<usize> = stratum
+            .clone()
+            .filter(|&pos| !covered[column[pos]])
             .collect();
-        stratum.sort_unstable_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
-        let size = stratum.len();
-        for d in 0..draws {
-            let (lo, hi) = (cut(size, d, draws), cut(size, d + 1, draws));
-            chosen.push(stratum[lo + uniform_below(&mut rng, hi - lo)].1);
-        }
+        let pos = if open.is_empty() {
+            stratum.start + uniform_below(&mut rng, stratum.len())
+        } else {
+            open[uniform_below(&mut rng, open.len())]
+        };
+        covered[column[pos]] = true;
+        chosen.push(population[pos]);
     }
     chosen
 }
