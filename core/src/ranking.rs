@@ -131,13 +131,18 @@ impl Summary {
     /// assert_eq!(Summary::Rms.of(&[0.0, 1.0], &[3.0, -4.0]), Some(12.5f64.sqrt()));
     /// ```
     pub fn of(&self, t: &[f64], r: &[f64]) -> Option<f64> {
+        self.of_with(t, r, &mut Vec::new())
+    }
+
+    /// [`Summary::of`] with a scratch buffer for the quantiles (no allocation per subject).
+    fn of_with(&self, t: &[f64], r: &[f64], buf: &mut Vec<f64>) -> Option<f64> {
         let n = r.len() as f64;
         if r.is_empty() {
             return None;
         }
         match *self {
-            Summary::Median => Some(quantile_of(r, 0.5)),
-            Summary::Quantile(p) => Some(quantile_of(r, p)),
+            Summary::Median => Some(quantile_of(r, 0.5, buf)),
+            Summary::Quantile(p) => Some(quantile_of(r, p, buf)),
             Summary::Mean => Some(r.iter().sum::<f64>() / n),
             Summary::Rms => Some((r.iter().map(|v| v * v).sum::<f64>() / n).sqrt()),
             Summary::MaxAbs => Some(r.iter().fold(0.0, |m: f64, v| m.max(v.abs()))),
@@ -155,10 +160,11 @@ impl Summary {
     }
 }
 
-fn quantile_of(r: &[f64], p: f64) -> f64 {
-    let mut v = r.to_vec();
-    v.sort_unstable_by(f64::total_cmp);
-    quantile_sorted(&v, p)
+fn quantile_of(r: &[f64], p: f64, buf: &mut Vec<f64>) -> f64 {
+    buf.clear();
+    buf.extend_from_slice(r);
+    buf.sort_unstable_by(f64::total_cmp);
+    quantile_sorted(buf, p)
 }
 
 /// Subjects in rank order of a summary of their residuals.
@@ -180,6 +186,20 @@ pub struct Ranking {
     pub subject_index: Vec<usize>,
 }
 
+/// The first index holding a non-finite value. Blocks are scanned in parallel; rayon's
+/// per-item `position_first` costs far more than the test itself.
+pub(crate) fn first_non_finite(v: &[f64]) -> Option<usize> {
+    const CHUNK: usize = 1 << 14;
+    let b = v
+        .par_chunks(CHUNK)
+        .position_first(|c| c.iter().any(|x| !x.is_finite()))?;
+    let start = b * CHUNK;
+    v[start..]
+        .iter()
+        .position(|x| !x.is_finite())
+        .map(|k| start + k)
+}
+
 /// Checks residuals against a panel: one finite value per observation.
 pub(crate) fn check_residuals(panel: &Panel, residuals: &[f64]) -> Result<()> {
     if residuals.len() != panel.n_obs() {
@@ -190,7 +210,7 @@ pub(crate) fn check_residuals(panel: &Panel, residuals: &[f64]) -> Result<()> {
             found: residuals.len(),
         });
     }
-    if let Some(k) = residuals.par_iter().position_first(|r| !r.is_finite()) {
+    if let Some(k) = first_non_finite(residuals) {
         return Err(Error::NonFinite {
             argument: "residuals".into(),
             row: panel.order()[k] + 1,
@@ -229,9 +249,9 @@ pub fn rank_subjects(panel: &Panel, residuals: &[f64], summary: Summary) -> Resu
     let t = panel.time();
     let values: Vec<Option<f64>> = (0..panel.n_subjects())
         .into_par_iter()
-        .map(|i| {
+        .map_init(Vec::new, |buf, i| {
             let rows = panel.subject_rows(i);
-            summary.of(&t[rows.clone()], &residuals[rows])
+            summary.of_with(&t[rows.clone()], &residuals[rows], buf)
         })
         .collect();
     let mut ranked: Vec<(f64, usize)> = values
@@ -289,16 +309,19 @@ pub struct Pick {
     pub residual: Vec<f64>,
 }
 
-/// Checks that a ranking was made from this panel.
-pub(crate) fn check_ranking(panel: &Panel, ranking: &Ranking) -> Result<()> {
+/// Checks that a ranking fits this panel: consistent lengths, indices in range, and the ids
+/// at the positions `used` equal the panel's (checking every id would cost a random access per
+/// subject; the entries an output reports are the ones that must be right).
+pub(crate) fn check_ranking(panel: &Panel, ranking: &Ranking, used: &[usize]) -> Result<()> {
     let ids = panel.ids();
-    let consistent = ranking.subject_index.len() == ranking.subjects.len()
-        && ranking.values.len() == ranking.subjects.len()
-        && ranking
-            .subject_index
+    let m = ranking.subjects.len();
+    let consistent = ranking.subject_index.len() == m
+        && ranking.values.len() == m
+        && m + ranking.unranked.len() == ids.len()
+        && ranking.subject_index.iter().all(|&i| i < ids.len())
+        && used
             .iter()
-            .zip(&ranking.subjects)
-            .all(|(&i, id)| ids.get(i) == Some(id));
+            .all(|&pos| pos < m && ids[ranking.subject_index[pos]] == ranking.subjects[pos]);
     if consistent {
         Ok(())
     } else {
@@ -338,7 +361,6 @@ pub fn pick_subjects(
     quantiles: &[f64],
 ) -> Result<Vec<Pick>> {
     check_residuals(panel, residuals)?;
-    check_ranking(panel, ranking)?;
     if quantiles.is_empty() {
         return Err(Error::option(
             "quantiles",
@@ -358,6 +380,8 @@ pub fn pick_subjects(
             found: 0,
         });
     }
+    let positions: Vec<usize> = quantiles.iter().map(|&q| rank_position(q, m)).collect();
+    check_ranking(panel, ranking, &positions)?;
     Ok(quantiles
         .iter()
         .map(|&q| {

@@ -123,7 +123,7 @@ pub fn residuals(panel: &Panel, mean: &MeanModel) -> Result<Residuals> {
             (fitted, model, None, Some(groups))
         }
     };
-    if let Some(k) = fitted.iter().position(|f| !f.is_finite()) {
+    if let Some(k) = crate::ranking::first_non_finite(&fitted) {
         return Err(Error::NonFinite {
             argument: "fitted".into(),
             row: panel.order()[k] + 1,
@@ -171,14 +171,26 @@ fn polynomial(t: &[f64], y: &[f64], degree: usize) -> Result<(Vec<f64>, Vec<f64>
             found: distinct,
         });
     }
-    let lo = t.iter().copied().fold(f64::INFINITY, f64::min);
-    let hi = t.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+    let (lo, hi) = t
+        .par_chunks(BLOCK)
+        .map(|c| {
+            c.iter()
+                .fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), &v| {
+                    (l.min(v), h.max(v))
+                })
+        })
+        .reduce(
+            || (f64::INFINITY, f64::NEG_INFINITY),
+            |a, b| (a.0.min(b.0), a.1.max(b.1)),
+        );
     let c = (lo + hi) / 2.0;
     // One distinct time (degree 0 only): any scale will do.
     let s = if hi > lo { (hi - lo) / 2.0 } else { 1.0 };
-    let u: Vec<f64> = t.par_iter().map(|&v| (v - c) / s).collect();
-    let beta = householder_ls(&u, y, p);
-    let fitted = u.par_iter().map(|&v| horner(&beta, v)).collect();
+    let beta = tsqr_ls(t, y, c, s, p);
+    let fitted = t
+        .par_chunks(BLOCK)
+        .flat_map_iter(|ch| ch.iter().map(|&v| horner(&beta, (v - c) / s)))
+        .collect();
     Ok((fitted, to_original_scale(&beta, c, s)))
 }
 
@@ -200,82 +212,72 @@ fn count_distinct_up_to(t: &[f64], cap: usize) -> usize {
     seen.len()
 }
 
-/// Least squares of y on the columns u^0..u^(p-1) by Householder QR: returns beta.
-fn householder_ls(u: &[f64], y: &[f64], p: usize) -> Vec<f64> {
-    let n = u.len();
-    // Columns of the design, then y as the last column: each reflection is applied to all.
-    let mut cols: Vec<Vec<f64>> = (0..p)
-        .map(|j| u.par_iter().map(|&v| v.powi(j as i32)).collect())
+/// Rows per block of the tall-skinny QR: the block's design fits in cache.
+const QR_BLOCK: usize = 2048;
+
+/// Least squares of y on the columns u^0..u^(p-1), u = (t - c) / s, by Householder QR in the
+/// tall-skinny form (Demmel, Grigori, Hoemmen & Langou 2012, SIAM J. Sci. Comput. 34:A206):
+/// each block of rows is reduced by Householder reflections to its p x (p + 1) triangle
+/// [R_b | (Q_b' y)_b], the triangles are stacked in block order and reduced the same way.
+/// One pass over the data, blocks in parallel, and the same result for any thread count.
+fn tsqr_ls(t: &[f64], y: &[f64], c: f64, s: f64, p: usize) -> Vec<f64> {
+    let tops: Vec<Vec<Vec<f64>>> = t
+        .par_chunks(QR_BLOCK)
+        .zip(y.par_chunks(QR_BLOCK))
+        .map(|(tc, yc)| {
+            let mut cols: Vec<Vec<f64>> = (0..p)
+                .map(|j| tc.iter().map(|&v| ((v - c) / s).powi(j as i32)).collect())
+                .collect();
+            cols.push(yc.to_vec());
+            householder_top(&mut cols, p)
+        })
         .collect();
-    cols.push(y.to_vec());
-    let mut r = vec![vec![0.0; p]; p];
-    for k in 0..p {
-        let norm2 = block_dots(&cols[k][k..], &[&cols[k][k..]])[0];
+    // Stack the blocks' triangles (columns), in block order, and reduce again.
+    let mut stacked: Vec<Vec<f64>> = (0..=p)
+        .map(|j| tops.iter().flat_map(|top| top[j].iter().copied()).collect())
+        .collect();
+    let top = householder_top(&mut stacked, p);
+    let mut beta = vec![0.0; p];
+    for k in (0..p).rev() {
+        let acc: f64 = (k + 1..p).map(|j| top[j][k] * beta[j]).sum();
+        beta[k] = (top[p][k] - acc) / top[k][k];
+    }
+    beta
+}
+
+/// Householder reflections on the first p columns of `cols` (all of one length), applied to
+/// every column; returns the first min(rows, p) rows of each column afterwards (column-wise):
+/// the triangle R and the head of Q'y.
+fn householder_top(cols: &mut [Vec<f64>], p: usize) -> Vec<Vec<f64>> {
+    let rows = cols[0].len();
+    let kmax = rows.min(p);
+    for k in 0..kmax {
+        let norm2: f64 = cols[k][k..].iter().map(|v| v * v).sum();
+        if norm2 == 0.0 {
+            continue; // Nothing to reflect: the column is already zero below row k.
+        }
         let x0 = cols[k][k];
         let alpha = if x0 >= 0.0 {
             -norm2.sqrt()
         } else {
             norm2.sqrt()
         };
-        // v = x - alpha e1, kept in place of x; v'v = 2 (|x|^2 - alpha x0).
+        // v = x - alpha e1 (in place of x); v'v = 2 (|x|^2 - alpha x0).
         cols[k][k] = x0 - alpha;
         let vtv = 2.0 * (norm2 - alpha * x0);
-        r[k][k] = alpha;
         let (head, rest) = cols.split_at_mut(k + 1);
         let v = &head[k][k..];
-        if vtv > 0.0 && !rest.is_empty() {
-            let others: Vec<&[f64]> = rest.iter().map(|c| &c[k..]).collect();
-            let w = block_dots(v, &others);
-            let factors: Vec<f64> = w.iter().map(|wj| 2.0 * wj / vtv).collect();
-            rest.par_iter_mut()
-                .zip(factors.par_iter())
-                .for_each(|(col, &f)| {
-                    col[k..]
-                        .par_chunks_mut(BLOCK)
-                        .zip(v.par_chunks(BLOCK))
-                        .for_each(|(cc, vc)| cc.iter_mut().zip(vc).for_each(|(a, b)| *a -= f * b));
-                });
+        for col in rest.iter_mut() {
+            let w: f64 = v.iter().zip(&col[k..]).map(|(a, b)| a * b).sum();
+            let f = 2.0 * w / vtv;
+            col[k..].iter_mut().zip(v).for_each(|(a, b)| *a -= f * b);
         }
-        for j in k + 1..p {
-            r[k][j] = cols[j][k];
+        head[k][k] = alpha;
+        for x in head[k][k + 1..].iter_mut() {
+            *x = 0.0;
         }
     }
-    let qty: Vec<f64> = (0..p).map(|k| cols[p][k]).collect();
-    let mut beta = vec![0.0; p];
-    for k in (0..p).rev() {
-        let s: f64 = (k + 1..p).map(|j| r[k][j] * beta[j]).sum();
-        beta[k] = (qty[k] - s) / r[k][k];
-    }
-    debug_assert!(n >= p);
-    beta
-}
-
-/// Dot products of `v` with each of `others` (same length), in fixed blocks added in order.
-fn block_dots(v: &[f64], others: &[&[f64]]) -> Vec<f64> {
-    let m = others.len();
-    let parts: Vec<Vec<f64>> = v
-        .par_chunks(BLOCK)
-        .enumerate()
-        .map(|(b, vc)| {
-            let start = b * BLOCK;
-            others
-                .iter()
-                .map(|o| {
-                    vc.iter()
-                        .zip(&o[start..start + vc.len()])
-                        .map(|(a, c)| a * c)
-                        .sum()
-                })
-                .collect()
-        })
-        .collect();
-    let mut out = vec![0.0; m];
-    for part in parts {
-        for (o, x) in out.iter_mut().zip(part) {
-            *o += x;
-        }
-    }
-    out
+    cols.iter().map(|col| col[..kmax].to_vec()).collect()
 }
 
 /// Coefficients of sum beta_j ((t - c) / s)^j as a polynomial in t, intercept first.

@@ -111,7 +111,7 @@ pub fn sample_subjects(
     // Population in first-axis order: by rank, or by (visits, panel index).
     let population: Vec<usize> = match ranking {
         Some(r) => {
-            check_ranking(panel, r)?;
+            check_ranking(panel, r, &[])?;
             r.subject_index.clone()
         }
         None => {

@@ -161,7 +161,7 @@ pub fn unusual(
     check_threshold("subject_threshold", subject_threshold)?;
     check_threshold("observation_threshold", observation_threshold)?;
     check_residuals(panel, residuals)?;
-    check_ranking(panel, ranking)?;
+    check_ranking(panel, ranking, &[])?;
 
     let v = &ranking.values;
     let center = median_select(&mut v.clone());
@@ -185,6 +185,13 @@ pub fn unusual(
             })
         })
         .collect();
+    let flagged_pos: Vec<usize> = v
+        .iter()
+        .enumerate()
+        .filter(|(_, &value)| z(value, center, scale).abs() > subject_threshold)
+        .map(|(pos, _)| pos)
+        .collect();
+    check_ranking(panel, ranking, &flagged_pos)?;
     subjects.sort_by(|a, b| {
         b.1.robust_z
             .abs()
@@ -193,9 +200,15 @@ pub fn unusual(
     });
 
     let observation_scale = robust_scale(residuals, 0.0);
-    let flagged: Vec<usize> = (0..residuals.len())
-        .into_par_iter()
-        .filter(|&k| z(residuals[k], 0.0, observation_scale).abs() > observation_threshold)
+    let flagged: Vec<usize> = residuals
+        .par_chunks(1 << 14)
+        .enumerate()
+        .flat_map_iter(|(b, c)| {
+            c.iter().enumerate().filter_map(move |(j, &r)| {
+                (z(r, 0.0, observation_scale).abs() > observation_threshold)
+                    .then_some(b * (1 << 14) + j)
+            })
+        })
         .collect();
     let offsets = panel.offsets();
     let mut observations: Vec<(usize, UnusualObservation)> = flagged
