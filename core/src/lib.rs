@@ -27,13 +27,17 @@ pub mod lowess;
 pub mod mean_curve;
 pub mod panel;
 pub mod quantile;
+pub mod ranking;
+pub mod residuals;
 pub mod rng;
+pub mod sample;
 pub mod simulate;
 pub mod smoother;
 pub mod spline;
 pub mod supsmu;
 pub mod trajectory_grid;
 pub mod tune;
+pub mod unusual;
 
 pub use describe::{describe, Description, Pattern};
 pub use error::{Error, Result};
