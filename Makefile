@@ -72,6 +72,11 @@ fixtures-check: setup
 	Rscript tests/reference/spline_r.R --check
 	$(PY) tests/reference/spline_py.py --check
 	$(PY) tests/reference/spline_exact.py --check
+	Rscript tests/reference/bands_r.R --check
+	Rscript tests/reference/chickweight_r.R --check
+	$(PY) tests/reference/covariates_py.py --check
+	Rscript tests/reference/residuals_r.R --check
+	$(PY) tests/reference/residuals_py.py --check
 
 # Speed: criterion per smoother, then ours vs the reference libraries side by side.
 bench: cli python r

@@ -6,6 +6,7 @@ use pyo3::prelude::*;
 mod covariates;
 mod describe;
 mod errors;
+mod individuals;
 mod mean_curve;
 mod panel;
 mod simulate;
@@ -29,5 +30,11 @@ fn _trajweave(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(covariates::panel_group_curves, m)?)?;
     m.add_function(wrap_pyfunction!(covariates::panel_dropout_curves, m)?)?;
     m.add_function(wrap_pyfunction!(covariates::panel_trajectory_grid, m)?)?;
+    m.add_class::<individuals::NativeRanking>()?;
+    m.add_function(wrap_pyfunction!(individuals::panel_residuals, m)?)?;
+    m.add_function(wrap_pyfunction!(individuals::panel_rank_subjects, m)?)?;
+    m.add_function(wrap_pyfunction!(individuals::panel_pick_subjects, m)?)?;
+    m.add_function(wrap_pyfunction!(individuals::panel_sample_subjects, m)?)?;
+    m.add_function(wrap_pyfunction!(individuals::panel_unusual, m)?)?;
     Ok(())
 }

@@ -27,6 +27,17 @@ from .errors import (
     TooFewError,
     TrajweaveError,
 )
+from .individuals import (
+    ByGroup,
+    Polynomial,
+    Ranking,
+    Residuals,
+    pick_subjects,
+    rank_subjects,
+    residuals,
+    sample_subjects,
+    unusual,
+)
 from .panel import Panel
 from .simulate import simulate
 from .smoothers import (
@@ -68,6 +79,15 @@ __all__ = [
     "dropout_curves",
     "trajectory_grid",
     "TrajectoryGrid",
+    "Polynomial",
+    "ByGroup",
+    "Residuals",
+    "residuals",
+    "Ranking",
+    "rank_subjects",
+    "pick_subjects",
+    "sample_subjects",
+    "unusual",
     "TrajweaveError",
     "LengthMismatchError",
     "NonFiniteError",

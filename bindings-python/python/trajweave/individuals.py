@@ -1,0 +1,115 @@
+"""Individual variation: residuals from a mean model, subjects ranked by a summary of their
+residuals, the subjects at chosen quantiles, reproducible samples and unusual subjects.
+
+Per-row values (residuals, fitted values) are in your row order, NaN in dropped rows.
+
+>>> import trajweave as tw
+>>> p = tw.Panel.from_frame(tw.simulate(subjects=40, seed=3), "patient", "years", "egfr")
+>>> r = tw.residuals(p, tw.Polynomial(1))
+>>> ranking = tw.rank_subjects(p, r, "median")
+>>> [pick["rank"] for pick in tw.pick_subjects(p, r, ranking, [0.0, 0.5, 1.0])]
+[1, 21, 40]
+"""
+
+import json
+
+import numpy as np
+
+from . import _trajweave
+from ._record import Record
+from .panel import _floats
+from .smoothers import Curve
+from .trend import MeanCurve
+
+
+class Polynomial:
+    """A least-squares polynomial in time of degree 0 to 3, as a mean model."""
+
+    def __init__(self, degree=1):
+        self.degree = degree
+
+
+class ByGroup:
+    """One smooth per level of a categorical covariate, as a mean model."""
+
+    def __init__(self, covariate, smoother):
+        self.covariate, self.smoother = covariate, smoother
+
+
+def _mean(mean):
+    if isinstance(mean, MeanCurve):
+        mean = mean.curve
+    if isinstance(mean, Curve):
+        return ("curve", mean.x, mean.fitted)
+    if isinstance(mean, Polynomial):
+        return ("polynomial", int(mean.degree))
+    if isinstance(mean, ByGroup):
+        return ("by_group", str(mean.covariate), mean.smoother.family, mean.smoother._pairs())
+    from .errors import InvalidOptionError
+
+    raise InvalidOptionError(
+        f"`mean` = {type(mean).__name__} is not allowed: give a Curve or MeanCurve, "
+        "tw.Polynomial(degree) or tw.ByGroup(covariate, smoother)")
+
+
+class Residuals(np.ndarray):
+    """Residuals in your row order (a numpy array), with ``fitted``, ``model``,
+    ``coefficients`` (polynomial, original time scale, intercept first) and ``groups``."""
+
+    def __array_finalize__(self, obj):
+        for name in ("fitted", "model", "coefficients", "groups"):
+            setattr(self, name, getattr(obj, name, None))
+
+
+def residuals(panel, mean):
+    """Response minus the mean model's fit, one value per input row.
+
+    ``mean``: a :class:`~trajweave.Curve` or :class:`~trajweave.MeanCurve`, ``Polynomial(d)``
+    or ``ByGroup(covariate, smoother)``.
+    """
+    values, fitted, meta = _trajweave.panel_residuals(panel._native, _mean(mean))
+    out = values.view(Residuals)
+    meta = json.loads(meta)
+    out.fitted, out.model = fitted, meta["model"]
+    out.coefficients, out.groups = meta["coefficients"], meta["groups"]
+    return out
+
+
+class Ranking(Record):
+    """``summary``, ``subjects`` (smallest summary first), ``values``, ``ranks`` (1-based),
+    ``observations``, ``unranked``."""
+
+    __slots__ = ("_native",)
+
+    def __init__(self, native):
+        super().__init__(json.loads(native.to_json()))
+        object.__setattr__(self, "_native", native)
+
+
+def rank_subjects(panel, residuals, summary="median", p=None):
+    """Ranks subjects by a summary of their residuals: "median", "mean", "quantile" (with
+    ``p``), "rms", "max_abs" or "slope"."""
+    native = _trajweave.panel_rank_subjects(panel._native, _floats("residuals", residuals), summary,
+                                            None if p is None else float(p))
+    return Ranking(native)
+
+
+def pick_subjects(panel, residuals, ranking, quantiles):
+    """The subject at each quantile of the ranking, with its time, response and residual."""
+    return json.loads(_trajweave.panel_pick_subjects(panel._native, _floats("residuals", residuals),
+                                                     ranking._native, [float(q) for q in quantiles]))
+
+
+def sample_subjects(panel, k, seed=1, strategy="random", ranking=None):
+    """``k`` subjects drawn by the seeded generator: "random", or "spread" (covering the range
+    of the ranking's summary and of follow-up)."""
+    return Record(json.loads(_trajweave.panel_sample_subjects(
+        panel._native, int(k), int(seed), strategy, None if ranking is None else ranking._native)))
+
+
+def unusual(panel, residuals, ranking, subject_threshold=3.5, observation_threshold=3.5):
+    """Subjects whose summary is beyond a robust z threshold, and observations whose
+    standardised residual is."""
+    return Record(json.loads(_trajweave.panel_unusual(
+        panel._native, _floats("residuals", residuals), ranking._native,
+        float(subject_threshold), float(observation_threshold))))
