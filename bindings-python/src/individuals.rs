@@ -59,6 +59,9 @@ fn mean_model(raw: RawMean<'_>) -> PyResult<MeanModel> {
     })
 }
 
+/// (residuals, fitted, JSON of the rest).
+pub type ResidualParts<'py> = (Bound<'py, PyArray1<f64>>, Bound<'py, PyArray1<f64>>, String);
+
 /// Residuals of a mean model: (residuals, fitted) in the caller's row order, and the rest
 /// (model, coefficients, groups) as JSON.
 #[pyfunction]
@@ -66,7 +69,7 @@ pub fn panel_residuals<'py>(
     py: Python<'py>,
     panel: &NativePanel,
     mean: RawMean<'_>,
-) -> PyResult<(Bound<'py, PyArray1<f64>>, Bound<'py, PyArray1<f64>>, String)> {
+) -> PyResult<ResidualParts<'py>> {
     let model = mean_model(mean)?;
     let r = py.detach(|| residuals(&panel.inner, &model)).py_err()?;
     let meta =
