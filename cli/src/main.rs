@@ -1,6 +1,8 @@
 //! The `trajweave` command: explore longitudinal data held in CSV files.
 
+mod covariates;
 mod error;
+mod individuals;
 mod smooth;
 mod table;
 
@@ -35,6 +37,14 @@ enum Command {
     Smooth(smooth::SmoothArgs),
     /// Choose the amount of smoothing by cross-validation over subjects.
     Tune(smooth::TuneArgs),
+    /// Residuals, subjects ranked by them, picks at quantiles, a sample and unusual subjects.
+    Individuals(individuals::IndividualsArgs),
+    /// Equal-count bands of a covariate with a trend and slope per band.
+    Covariate(covariates::CovariateArgs),
+    /// A mean curve per level of a covariate, or per dropout cohort.
+    Groups(covariates::GroupsArgs),
+    /// Subjects x time bins of binned means, rows ordered by follow-up, for a heat map.
+    Grid(covariates::GridArgs),
 }
 
 #[derive(Args)]
@@ -124,6 +134,10 @@ fn main() -> ExitCode {
         Command::Simulate(a) => run_simulate(&a),
         Command::Smooth(a) => smooth::run_smooth(&a),
         Command::Tune(a) => smooth::run_tune(&a),
+        Command::Individuals(a) => individuals::run_individuals(&a),
+        Command::Covariate(a) => covariates::run_covariate(&a),
+        Command::Groups(a) => covariates::run_groups(&a),
+        Command::Grid(a) => covariates::run_grid(&a),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,
@@ -208,4 +222,14 @@ pub fn write_out(path: &Path, bytes: &[u8]) -> Result<(), CliError> {
         std::fs::write(path, bytes)
     };
     result.map_err(|e| CliError::io(&name, e.to_string()))
+}
+
+#[cfg(test)]
+mod tests {
+    #[test]
+    fn every_command_line_is_well_formed() {
+        // clap's own consistency checks (unique names, valid defaults) for every subcommand.
+        use clap::CommandFactory;
+        super::Cli::command().debug_assert();
+    }
 }

@@ -17,7 +17,7 @@ use crate::{json, write_out, Format, PanelArgs};
 #[derive(Args)]
 pub struct SmootherArgs {
     /// Smoother family: lowess, kernel, spline or super.
-    #[arg(long)]
+    #[arg(long, default_value = "lowess")]
     method: String,
     /// LOWESS or super smoother span (fraction of points), or "cv" for the super smoother's
     /// variable span.

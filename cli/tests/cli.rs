@@ -328,3 +328,92 @@ fn smooth_and_tune_kernel() {
     let o = on_file("smooth", &path, &["--method", "cubic"]);
     assert_eq!(stderr(&o), "error [invalid_option]: `smoother` = \"cubic\" is not allowed: use \"lowess\", \"kernel\", \"spline\" or \"super\"");
 }
+
+#[test]
+fn individuals_covariate_groups_grid() {
+    let mut csv = String::from("id,t,y,g\n");
+    for s in 0..8 {
+        for k in 0..4 {
+            csv += &format!("{s},{k},{},{}\n", (s * 7 + k * 3) % 11, s % 2);
+        }
+    }
+    let path = temp_csv("ind.csv", &csv);
+    let out = std::env::temp_dir().join(format!("trajweave-cli-{}/res.csv", std::process::id()));
+    let o = on_file(
+        "individuals",
+        &path,
+        &[
+            "--poly-degree",
+            "0",
+            "--sample",
+            "3",
+            "--residuals-out",
+            out.to_str().unwrap(),
+        ],
+    );
+    assert!(o.status.success(), "{}", stderr(&o));
+    let d: Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(d["ranking"]["subjects"].as_array().unwrap().len(), 8);
+    assert_eq!(d["sample"]["subjects"].as_array().unwrap().len(), 3);
+    // Degree 0: the residual is y minus the mean of all y (closed form), in the file's order.
+    let ys: Vec<f64> = csv
+        .lines()
+        .skip(1)
+        .map(|l| l.split(',').nth(2).unwrap().parse().unwrap())
+        .collect();
+    let mean = ys.iter().sum::<f64>() / ys.len() as f64;
+    let res: Vec<f64> = std::fs::read_to_string(&out)
+        .unwrap()
+        .lines()
+        .skip(1)
+        .map(|l| l.parse().unwrap())
+        .collect();
+    for (r, y) in res.iter().zip(&ys) {
+        assert!((r - (y - mean)).abs() < 1e-12);
+    }
+    let o = on_file(
+        "covariate",
+        &path,
+        &[
+            "--covariate",
+            "g",
+            "--by",
+            "g",
+            "--bands",
+            "2",
+            "--overlap",
+            "0",
+            "--method",
+            "kernel",
+            "--bandwidth",
+            "1",
+        ],
+    );
+    let d: Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(d["bands"]["counted"], "subjects", "{}", stderr(&o));
+    let o = on_file(
+        "groups",
+        &path,
+        &[
+            "--covariate",
+            "g",
+            "--by",
+            "g",
+            "--method",
+            "kernel",
+            "--bandwidth",
+            "1",
+        ],
+    );
+    let d: Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(d["groups"].as_array().unwrap().len(), 2, "{}", stderr(&o));
+    let o = on_file("groups", &path, &["--method", "kernel"]);
+    assert!(
+        stderr(&o).starts_with("error [invalid_option]: `--by`"),
+        "{}",
+        stderr(&o)
+    );
+    let o = on_file("grid", &path, &["--edges", "0,2,4"]);
+    let d: Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(d["values"].as_array().unwrap().len(), 16, "{}", stderr(&o));
+}
