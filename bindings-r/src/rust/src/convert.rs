@@ -6,6 +6,7 @@
 
 use extendr_api::prelude::*;
 use trajweave_core::curve::OptionValue;
+use trajweave_core::{Panel, SubjectId};
 
 use crate::error::{invalid_option, Failure};
 
@@ -259,4 +260,54 @@ pub fn reals_na(values: &[f64]) -> Robj {
         .map(|&v| if v.is_nan() { f64::na() } else { v })
         .collect::<Vec<f64>>()
         .into()
+}
+
+/// Exactly one text (not `NA`), or the error worded with `allowed`.
+pub fn one_text(x: &Robj, argument: &str, allowed: &str) -> Result<String, Failure> {
+    scalar_text(x).ok_or_else(|| invalid_option(argument, value_text(x), allowed))
+}
+
+/// Subject ids as an R vector: text ids as a character vector, integer ids as doubles (as the
+/// JSON rule gives them). `text` says which, so an empty vector still has the panel's type.
+pub fn ids_robj(ids: &[SubjectId], text: bool) -> Robj {
+    if text {
+        ids.iter().map(|id| id.to_string()).collect_robj()
+    } else {
+        ids.iter()
+            .map(|id| match id {
+                SubjectId::Int(i) => *i as f64,
+                // Not reached: a panel's ids are all of one kind.
+                SubjectId::Text(_) => f64::na(),
+            })
+            .collect_robj()
+    }
+}
+
+/// True when the panel's ids are text.
+pub fn text_ids(panel: &Panel) -> bool {
+    matches!(panel.ids().first(), Some(SubjectId::Text(_)))
+}
+
+/// Counts held as `usize`, as doubles.
+pub fn usize_counts<'a>(values: impl Iterator<Item = &'a usize>) -> Robj {
+    values.map(|&v| v as f64).collect::<Vec<f64>>().into()
+}
+
+/// A numeric matrix from column-major `values` (`nrow` x `ncol`), with dimnames when given.
+pub fn matrix(
+    values: Robj,
+    nrow: usize,
+    ncol: usize,
+    rownames: Robj,
+    colnames: Robj,
+) -> Result<Robj, Failure> {
+    let too_big = |_| Failure::Internal("matrix dimension beyond R's integer range".into());
+    let dim = [
+        i32::try_from(nrow).map_err(too_big)?,
+        i32::try_from(ncol).map_err(too_big)?,
+    ];
+    let mut m = values;
+    m.set_attrib(dim_symbol(), dim)?;
+    m.set_attrib(dimnames_symbol(), List::from_values([rownames, colnames]))?;
+    Ok(m)
 }

@@ -6,14 +6,17 @@
 //! the R wrapper raises the classed condition. A core error therefore never unwinds through R.
 //!
 //! Files mirror the core's modules: `panel.rs`, `describe.rs`, `simulate.rs`, `smoother.rs`
-//! (with the curve's `predict`), `mean_curve.rs`, `tune.rs`, `error.rs`; `convert.rs` and
-//! `json.rs` hold the R value conversions they share.
+//! (with the curve's `predict`), `mean_curve.rs`, `tune.rs`, `individuals.rs` (residuals,
+//! ranking, sample, unusual), `covariates.rs` (bands, conditional, groups, trajectory_grid),
+//! `error.rs`; `convert.rs` and `json.rs` hold the R value conversions they share.
 
 use extendr_api::prelude::*;
 
 mod convert;
+mod covariates;
 mod describe;
 mod error;
+mod individuals;
 mod json;
 mod mean_curve;
 mod panel;
@@ -30,4 +33,6 @@ extendr_module! {
     use smoother;
     use mean_curve;
     use tune;
+    use individuals;
+    use covariates;
 }

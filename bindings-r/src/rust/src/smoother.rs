@@ -88,8 +88,20 @@ fn tw_predict_curve(x: Robj, fitted: Robj, new_x: Robj) -> Robj {
 }
 
 fn predict(x: &Robj, fitted: &Robj, new_x: &Robj) -> Outcome {
-    let points = real_slice(x, "object")?;
-    let values = real_slice(fitted, "object")?;
+    let curve = curve_from_points("", x, fitted, "object")?;
+    Ok(curve.predict(real_slice(new_x, "newdata")?).into())
+}
+
+/// A core curve from the points of an R curve (`x` and `fitted`), refused under `argument`
+/// when they were edited so that the curve's rule no longer applies.
+pub fn curve_from_points(
+    method: &str,
+    x: &Robj,
+    fitted: &Robj,
+    argument: &str,
+) -> Result<Curve, Failure> {
+    let points = real_slice(x, argument)?;
+    let values = real_slice(fitted, argument)?;
     // The points come back from R, where they may have been edited: the interpolation needs
     // them finite and strictly increasing, with one fitted value each.
     let usable = !points.is_empty()
@@ -98,20 +110,19 @@ fn predict(x: &Robj, fitted: &Robj, new_x: &Robj) -> Outcome {
         && points.windows(2).all(|w| w[0] < w[1]);
     if !usable {
         return Err(invalid_option(
-            "object",
+            argument,
             "a curve whose points were changed".into(),
             "`x` must be finite and increasing without ties, with one `fitted` value each; \
              use a curve from fit_smoother()",
         ));
     }
-    let curve = Curve::new(
-        "",
+    Ok(Curve::new(
+        method,
         points.to_vec(),
         values.to_vec(),
         serde_json::Value::Null,
         Diagnostics::new(points.len()),
-    );
-    Ok(curve.predict(real_slice(new_x, "newdata")?).into())
+    ))
 }
 
 extendr_module! {
