@@ -3,6 +3,7 @@
 
 use numpy::{IntoPyArray, PyArray1, PyReadonlyArray1};
 use pyo3::prelude::*;
+use pyo3::types::PyList;
 use trajweave_core::bands::{covariate_bands, equal_count_bands, Band, Bands};
 use trajweave_core::conditional::conditional_trends;
 use trajweave_core::groups::{dropout_curves, group_curves};
@@ -10,7 +11,7 @@ use trajweave_core::trajectory_grid::trajectory_grid;
 use trajweave_core::TimeGrid;
 
 use crate::errors::IntoPy;
-use crate::panel::NativePanel;
+use crate::panel::{id_list, NativePanel};
 use crate::smoother::{build, json_err, vec, RawOption};
 
 #[pyfunction]
@@ -137,8 +138,15 @@ pub fn panel_dropout_curves(
     serde_json::to_string(&g).map_err(json_err)
 }
 
-/// The grid as (JSON without the matrix, values, counts); the matrix is row-major subjects x bins.
-#[allow(clippy::type_complexity)]
+/// (bins, subjects, order values, values, counts); the matrix is row-major subjects x bins.
+pub type GridParts<'py> = (
+    Vec<String>,
+    Bound<'py, PyList>,
+    Bound<'py, PyArray1<f64>>,
+    Bound<'py, PyArray1<f64>>,
+    Bound<'py, PyArray1<u32>>,
+);
+
 #[pyfunction]
 #[pyo3(signature = (panel, values, order_by, edges=None, schedule=None, tolerance=None))]
 pub fn panel_trajectory_grid<'py>(
@@ -149,7 +157,7 @@ pub fn panel_trajectory_grid<'py>(
     edges: Option<Vec<f64>>,
     schedule: Option<Vec<f64>>,
     tolerance: Option<f64>,
-) -> PyResult<(String, Bound<'py, PyArray1<f64>>, Bound<'py, PyArray1<u32>>)> {
+) -> PyResult<GridParts<'py>> {
     let grid = grid(edges, schedule, tolerance)?;
     let values = panel
         .inner
@@ -159,10 +167,10 @@ pub fn panel_trajectory_grid<'py>(
     let g = py
         .detach(|| trajectory_grid(&panel.inner, &values, &grid, &order_by))
         .py_err()?;
-    let meta =
-        serde_json::json!({"bins": g.bins, "subjects": g.subjects, "order_values": g.order_values});
     Ok((
-        serde_json::to_string(&meta).map_err(json_err)?,
+        g.bins,
+        id_list(py, &g.subjects)?,
+        g.order_values.into_pyarray(py),
         g.values.into_pyarray(py),
         g.counts.into_pyarray(py),
     ))

@@ -4,6 +4,7 @@
 
 use numpy::{IntoPyArray, PyArray1, PyReadonlyArray1};
 use pyo3::prelude::*;
+use pyo3::types::PyList;
 use trajweave_core::curve::{Curve, Diagnostics};
 use trajweave_core::ranking::{pick_subjects, rank_subjects, Ranking, Summary};
 use trajweave_core::residuals::{residuals, MeanModel};
@@ -11,7 +12,7 @@ use trajweave_core::sample::{sample_subjects, Strategy};
 use trajweave_core::unusual::unusual;
 
 use crate::errors::IntoPy;
-use crate::panel::NativePanel;
+use crate::panel::{id_list, NativePanel};
 use crate::smoother::{build, json_err, vec, RawOption};
 
 /// The mean model as the wrapper describes it.
@@ -90,8 +91,29 @@ pub struct NativeRanking {
 
 #[pymethods]
 impl NativeRanking {
-    fn to_json(&self) -> PyResult<String> {
-        serde_json::to_string(&self.inner).map_err(json_err)
+    /// The summary as JSON (`{"kind": ..., "p": ...}`).
+    fn summary_json(&self) -> PyResult<String> {
+        serde_json::to_string(&self.inner.summary).map_err(json_err)
+    }
+    #[getter]
+    fn subjects<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyList>> {
+        id_list(py, &self.inner.subjects)
+    }
+    #[getter]
+    fn values<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<f64>> {
+        self.inner.values.clone().into_pyarray(py)
+    }
+    #[getter]
+    fn ranks<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<usize>> {
+        self.inner.ranks.clone().into_pyarray(py)
+    }
+    #[getter]
+    fn observations<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<usize>> {
+        self.inner.observations.clone().into_pyarray(py)
+    }
+    #[getter]
+    fn unranked<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyList>> {
+        id_list(py, &self.inner.unranked)
     }
 }
 

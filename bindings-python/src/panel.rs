@@ -34,6 +34,24 @@ impl RawIds<'_> {
     }
 }
 
+/// Subject ids as a Python list of ints or strs.
+pub fn id_list<'py>(py: Python<'py>, ids: &[SubjectId]) -> PyResult<Bound<'py, PyList>> {
+    let items: Vec<Bound<'py, PyAny>> = ids
+        .iter()
+        .map(|id| match id {
+            SubjectId::Int(i) => i
+                .into_pyobject(py)
+                .map(|o| o.into_any())
+                .map_err(PyErr::from),
+            SubjectId::Text(s) => s
+                .into_pyobject(py)
+                .map(|o| o.into_any())
+                .map_err(PyErr::from),
+        })
+        .collect::<PyResult<_>>()?;
+    PyList::new(py, items)
+}
+
 fn slice(a: &PyReadonlyArray1<'_, f64>) -> Vec<f64> {
     // Contiguous input is copied in one go; strided views element by element.
     a.as_slice()
@@ -89,22 +107,7 @@ impl NativePanel {
 
     #[getter]
     fn subject_ids<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyList>> {
-        let items: Vec<Bound<'py, PyAny>> = self
-            .inner
-            .ids()
-            .iter()
-            .map(|id| match id {
-                SubjectId::Int(i) => i
-                    .into_pyobject(py)
-                    .map(|o| o.into_any())
-                    .map_err(PyErr::from),
-                SubjectId::Text(s) => s
-                    .into_pyobject(py)
-                    .map(|o| o.into_any())
-                    .map_err(PyErr::from),
-            })
-            .collect::<PyResult<_>>()?;
-        PyList::new(py, items)
+        id_list(py, self.inner.ids())
     }
 
     #[getter]

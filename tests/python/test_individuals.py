@@ -53,7 +53,7 @@ def test_ranking_vs_pandas(data, summary, fn):
     want = want.sort_values(kind="stable")  # ties by id: the index is sorted by id
     assert ranking.subjects == want.index.tolist()
     np.testing.assert_allclose(ranking.values, want.to_numpy(), rtol=1e-12, atol=1e-12)
-    assert ranking.ranks == list(range(1, len(want) + 1))
+    assert ranking.ranks.tolist() == list(range(1, len(want) + 1))
 
 
 def test_picks_rule_and_trajectories(data):

@@ -59,21 +59,19 @@ def dropout_curves(panel, smoother, edges=None, schedule=None, tolerance=None, a
         **_grid(edges, schedule, tolerance))))
 
 
-class TrajectoryGrid(Record):
+class TrajectoryGrid:
     """``bins`` (labels), ``subjects`` (row order), ``order_values``, and ``values`` / ``counts``
     as subjects x bins numpy arrays (NaN where a subject has no visit in a bin)."""
 
-    __slots__ = ("values", "counts")
+    def __init__(self, bins, subjects, order_values, values, counts):
+        self.bins, self.subjects, self.order_values = bins, subjects, order_values
+        shape = (len(subjects), len(bins))
+        self.values, self.counts = values.reshape(shape), counts.reshape(shape)
 
 
 def trajectory_grid(panel, values, order_by, edges=None, schedule=None, tolerance=None):
     """Subjects x time bins of the mean of ``values`` (per row, your row order), rows ordered
     by ``order_by`` (one value per subject, in ``panel.subject_ids`` order)."""
-    meta, v, c = _trajweave.panel_trajectory_grid(panel._native, _floats("values", values),
-                                                  _floats("order_by", order_by),
-                                                  **_grid(edges, schedule, tolerance))
-    out = TrajectoryGrid(json.loads(meta))
-    shape = (len(out.subjects), len(out.bins))
-    object.__setattr__(out, "values", v.reshape(shape))
-    object.__setattr__(out, "counts", c.reshape(shape))
-    return out
+    return TrajectoryGrid(*_trajweave.panel_trajectory_grid(
+        panel._native, _floats("values", values), _floats("order_by", order_by),
+        **_grid(edges, schedule, tolerance)))

@@ -75,15 +75,27 @@ def residuals(panel, mean):
     return out
 
 
-class Ranking(Record):
-    """``summary``, ``subjects`` (smallest summary first), ``values``, ``ranks`` (1-based),
-    ``observations``, ``unranked``."""
-
-    __slots__ = ("_native",)
+class Ranking:
+    """Subjects ranked by a summary: ``summary`` (dict), ``subjects`` (smallest summary
+    first), ``values``, ``ranks`` (1-based), ``observations`` (numpy arrays), ``unranked``."""
 
     def __init__(self, native):
-        super().__init__(json.loads(native.to_json()))
-        object.__setattr__(self, "_native", native)
+        self._native = native
+        self.summary = json.loads(native.summary_json())
+        self.subjects = native.subjects
+        self.values = native.values
+        self.ranks = native.ranks
+        self.observations = native.observations
+        self.unranked = native.unranked
+
+    def to_dict(self):
+        """Every field as plain Python values."""
+        return {"summary": self.summary, "subjects": list(self.subjects), "values": self.values.tolist(),
+                "ranks": self.ranks.tolist(), "observations": self.observations.tolist(),
+                "unranked": list(self.unranked)}
+
+    def __repr__(self):
+        return f"Ranking({self.summary['kind']}, {len(self.subjects)} subjects)"
 
 
 def rank_subjects(panel, residuals, summary="median", p=None):
