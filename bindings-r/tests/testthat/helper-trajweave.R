@@ -96,3 +96,22 @@ skip_unless_family <- function(family) {
   )
   if (!known) skip(paste0("the core has no \"", family, "\" smoother yet"))
 }
+
+# Residuals of a least-squares polynomial against stats::lm(), relative to sd(y): the core
+# solves by Householder QR on scaled time, lm() by its own QR on raw powers of time.
+TOL_RESIDUALS <- 1e-10
+# Least-squares lines within a covariate band against stats::lm(), relative to the value.
+TOL_TRENDS <- 1e-10
+# Group fits against fit_smoother() on the group's rows alone: the same points, summed in
+# another row order.
+TOL_GROUPS <- 1e-12
+
+# ChickWeight (R's datasets) as a panel: chick id as integer, Diet as the numeric covariate
+# `diet`, and `birth` (each chick's weight at day 0) as a time-fixed continuous covariate.
+chick_frame <- function() {
+  cw <- as.data.frame(datasets::ChickWeight)
+  cw$id <- as.integer(as.character(cw$Chick))
+  cw$diet <- as.numeric(as.character(cw$Diet))
+  cw$birth <- ave(cw$weight, cw$id, FUN = function(w) w[1])
+  cw
+}

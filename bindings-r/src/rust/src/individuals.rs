@@ -15,7 +15,7 @@ use trajweave_core::unusual::unusual;
 use trajweave_core::Panel;
 
 use crate::convert::{
-    data_frame, field, ids_robj, named_fields, named_list, one_number, one_text, optional_real,
+    data_frame, field, ids_robj, named_fields, named_list, one_number, one_text,
     real_slice, reals_na, text_ids, usize_counts, value_text, whole_number,
 };
 use crate::error::{invalid_option, respond, Failure, Outcome};
@@ -154,7 +154,12 @@ fn run_rank(panel: &Robj, values: &Robj, summary: &Robj, p: &Robj) -> Outcome {
         "summary",
         &format!("use {}", trajweave_core::ranking::SUMMARIES),
     )?;
-    let summary = Summary::parse(&name, optional_real(p, "p")?)?;
+    let p = if p.is_null() {
+        None
+    } else {
+        Some(one_number(p, "p")?)
+    };
+    let summary = Summary::parse(&name, p)?;
     let r = panel_residuals(panel, values)?;
     let ranking = rank_subjects(panel, &r, summary)?;
     let text = text_ids(panel);
