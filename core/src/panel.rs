@@ -9,6 +9,7 @@
 use std::collections::HashMap;
 use std::fmt;
 
+use rayon::prelude::*;
 use serde::Serialize;
 
 use crate::error::{Error, Result};
@@ -222,19 +223,27 @@ impl Panel {
 
         // `+ 0.0` turns -0.0 into 0.0 so the two count as the same visit time.
         let t_of = |row: usize| time[row] + 0.0;
-        // Stable: rows with equal (subject, time) keep their input order.
-        kept.sort_by(|&a, &b| keys[a].cmp(&keys[b]).then(t_of(a).total_cmp(&t_of(b))));
+        // Sort on order-keeping integer images of (subject, time), the row last: every key is
+        // distinct, so the parallel unstable sort has one result, the stable order (rows with
+        // equal subject and time keep their input order).
+        let mut sorted: Vec<(u64, u64, usize)> = kept
+            .par_iter()
+            .map(|&row| (keys[row], time_key(t_of(row)), row))
+            .collect();
+        sorted.par_sort_unstable();
+        let kept: Vec<usize> = sorted.iter().map(|k| k.2).collect();
 
         let mut offsets = vec![0];
         let mut run_ids = Vec::new();
-        for (pos, &row) in kept.iter().enumerate() {
-            if pos == 0 || keys[row] != keys[kept[pos - 1]] {
+        for (pos, k) in sorted.iter().enumerate() {
+            if pos == 0 || k.0 != sorted[pos - 1].0 {
                 if pos > 0 {
                     offsets.push(pos);
                 }
-                run_ids.push(ids[keys[row]].clone());
+                run_ids.push(ids.id(k.0));
             }
         }
+        drop(sorted);
         offsets.push(kept.len());
 
         let covariates = covariates
@@ -422,25 +431,55 @@ fn missing_subject(row: usize) -> Error {
     }
 }
 
-/// Per row, the rank of its subject among the distinct ids (so sorting rows by key sorts them by
-/// id), and the distinct ids in that order.
-fn subject_keys(subjects: &SubjectIds) -> Result<(Vec<usize>, Vec<SubjectId>)> {
+/// How to turn a row's subject key back into its id.
+enum Ids {
+    /// The key is the integer id, sign bit flipped.
+    Int,
+    /// The key is the rank among these distinct texts.
+    Text(Vec<String>),
+}
+
+impl Ids {
+    fn id(&self, key: u64) -> SubjectId {
+        match self {
+            Ids::Int => SubjectId::Int((key ^ SIGN) as i64),
+            Ids::Text(t) => SubjectId::Text(t[key as usize].clone()),
+        }
+    }
+}
+
+const SIGN: u64 = 1 << 63;
+
+/// Order-keeping integer image of a finite time (already normalised so -0 is 0).
+fn time_key(t: f64) -> u64 {
+    let b = t.to_bits();
+    if b & SIGN != 0 {
+        !b
+    } else {
+        b | SIGN
+    }
+}
+
+/// Per row, an integer whose order is that of its subject id (integer ids directly, text ids
+/// by their rank among the distinct texts), and how to turn it back into the id.
+fn subject_keys(subjects: &SubjectIds) -> Result<(Vec<u64>, Ids)> {
+    let int_key = |i: i64| (i as u64) ^ SIGN;
     match subjects {
         SubjectIds::Int(v) => {
-            let ints = v
+            let keys = v
                 .iter()
                 .enumerate()
-                .map(|(row, id)| id.ok_or_else(|| missing_subject(row)))
-                .collect::<Result<Vec<i64>>>()?;
-            Ok(rank_keys(&ints, SubjectId::Int))
+                .map(|(row, id)| id.map(int_key).ok_or_else(|| missing_subject(row)))
+                .collect::<Result<Vec<u64>>>()?;
+            Ok((keys, Ids::Int))
         }
         SubjectIds::Float(v) => {
-            let ints = v
+            let keys = v
                 .iter()
                 .enumerate()
-                .map(|(row, &x)| float_id(row, x))
-                .collect::<Result<Vec<i64>>>()?;
-            Ok(rank_keys(&ints, SubjectId::Int))
+                .map(|(row, &x)| float_id(row, x).map(int_key))
+                .collect::<Result<Vec<u64>>>()?;
+            Ok((keys, Ids::Int))
         }
         SubjectIds::Text(v) => {
             let texts = v
@@ -451,7 +490,19 @@ fn subject_keys(subjects: &SubjectIds) -> Result<(Vec<usize>, Vec<SubjectId>)> {
                     _ => Err(missing_subject(row)),
                 })
                 .collect::<Result<Vec<&str>>>()?;
-            Ok(rank_keys(&texts, |s: &str| SubjectId::Text(s.to_string())))
+            let mut distinct: Vec<&str> = texts.clone();
+            distinct.sort_unstable();
+            distinct.dedup();
+            let rank: HashMap<&str, u64> = distinct
+                .iter()
+                .enumerate()
+                .map(|(i, &k)| (k, i as u64))
+                .collect();
+            let keys = texts.iter().map(|k| rank[k]).collect();
+            Ok((
+                keys,
+                Ids::Text(distinct.into_iter().map(String::from).collect()),
+            ))
         }
     }
 }
@@ -470,19 +521,6 @@ fn float_id(row: usize, x: f64) -> Result<i64> {
         });
     }
     Ok(x as i64)
-}
-
-fn rank_keys<K, F>(values: &[K], to_id: F) -> (Vec<usize>, Vec<SubjectId>)
-where
-    K: Ord + Copy + std::hash::Hash + Eq,
-    F: Fn(K) -> SubjectId,
-{
-    let mut distinct: Vec<K> = values.to_vec();
-    distinct.sort_unstable();
-    distinct.dedup();
-    let rank: HashMap<K, usize> = distinct.iter().enumerate().map(|(i, &k)| (k, i)).collect();
-    let keys = values.iter().map(|k| rank[k]).collect();
-    (keys, distinct.into_iter().map(to_id).collect())
 }
 
 #[cfg(test)]
