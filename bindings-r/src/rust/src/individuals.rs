@@ -15,8 +15,8 @@ use trajweave_core::unusual::unusual;
 use trajweave_core::Panel;
 
 use crate::convert::{
-    data_frame, field, ids_robj, named_fields, named_list, one_number, one_text,
-    real_slice, reals_na, text_ids, usize_counts, value_text, whole_number,
+    data_frame, field, ids_robj, named_fields, named_list, one_number, one_text, real_slice,
+    reals_na, text_ids, usize_counts, value_text, whole_number,
 };
 use crate::error::{invalid_option, respond, Failure, Outcome};
 use crate::mean_curve::{MAX_SEED, SEED_ALLOWED};
