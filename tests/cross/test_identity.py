@@ -192,3 +192,35 @@ def test_mean_curve_three_fronts(tmp_path, family, flags, r_spec, py_spec):
     same(from_cli["fitted"], from_r["fitted"], rel=R_REL_TOL)
     same(from_cli["band"]["lower"], from_r["lower"], rel=R_REL_TOL)
     same(from_cli["band"]["upper"], from_r["upper"], rel=R_REL_TOL)
+
+
+def test_individuals_three_fronts(tmp_path):
+    # Residuals from a degree-1 polynomial, the ranking by median residual, the picks and a
+    # spread sample: the same subjects and numbers from the CLI, Python and R.
+    quantiles = [0.05, 0.5, 0.95]
+    from_cli = json.loads(cli("individuals", DEMO, "--subject", "patient", "--time", "years",
+                              "--response", "egfr", "--quantiles", ",".join(map(str, quantiles)),
+                              "--sample", "8", "--strategy", "spread", "--seed", "4"))
+    df = pd.read_csv(DEMO)
+    panel = tw.Panel.from_frame(df, "patient", "years", "egfr")
+    r = tw.residuals(panel, tw.Polynomial(1))
+    ranking = tw.rank_subjects(panel, r, "median")
+    picks = tw.pick_subjects(panel, r, ranking, quantiles)
+    sample = tw.sample_subjects(panel, 8, seed=4, strategy="spread", ranking=ranking)
+    assert from_cli["ranking"]["subjects"] == ranking.subjects
+    assert from_cli["ranking"]["values"] == ranking.values.tolist()
+    assert [p["subject"] for p in from_cli["picks"]] == [p["subject"] for p in picks]
+    assert from_cli["sample"]["subjects"] == sample.subjects
+    assert from_cli["coefficients"] == r.coefficients
+    code = (f'df <- read.csv("{DEMO}")\n'
+            'p <- panel_from_frame(df, "patient", "years", "egfr")\n'
+            'r <- panel_residuals(p, residuals_polynomial(1))\n'
+            'k <- rank_subjects(p, r$residuals, "median")\n'
+            's <- sample_subjects(p, 8, seed = 4, strategy = "spread", ranking = k)\n'
+            'cat(jsonlite::toJSON(list(subjects = k$subjects, values = k$values, '
+            'sample = s$subjects, coefficients = r$coefficients), digits = NA))')
+    from_r = json.loads(rscript(code, tmp_path))
+    assert from_r["subjects"] == ranking.subjects
+    same(from_r["values"], ranking.values.tolist(), rel=R_REL_TOL)
+    assert from_r["sample"] == sample.subjects
+    same(from_r["coefficients"], r.coefficients, rel=R_REL_TOL)
