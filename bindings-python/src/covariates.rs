@@ -11,6 +11,7 @@ use trajweave_core::trajectory_grid::trajectory_grid;
 use trajweave_core::TimeGrid;
 
 use crate::errors::IntoPy;
+use crate::individuals::RawValues;
 use crate::panel::{id_list, NativePanel};
 use crate::smoother::{build, json_err, vec, RawOption};
 
@@ -152,17 +153,14 @@ pub type GridParts<'py> = (
 pub fn panel_trajectory_grid<'py>(
     py: Python<'py>,
     panel: &NativePanel,
-    values: PyReadonlyArray1<'_, f64>,
+    values: RawValues<'_>,
     order_by: PyReadonlyArray1<'_, f64>,
     edges: Option<Vec<f64>>,
     schedule: Option<Vec<f64>>,
     tolerance: Option<f64>,
 ) -> PyResult<GridParts<'py>> {
     let grid = grid(edges, schedule, tolerance)?;
-    let values = panel
-        .inner
-        .from_input_order("values", &vec(&values))
-        .py_err()?;
+    let values = values.panel_order(panel, "values")?;
     let order_by = vec(&order_by);
     let g = py
         .detach(|| trajectory_grid(&panel.inner, &values, &grid, &order_by))

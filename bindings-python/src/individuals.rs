@@ -60,8 +60,38 @@ fn mean_model(raw: RawMean<'_>) -> PyResult<MeanModel> {
     })
 }
 
-/// (residuals, fitted, JSON of the rest).
-pub type ResidualParts<'py> = (Bound<'py, PyArray1<f64>>, Bound<'py, PyArray1<f64>>, String);
+/// Per-row values kept in panel order on the native side, so passing residuals from one call
+/// to the next costs no reordering.
+#[pyclass(name = "NativeValues", module = "trajweave._trajweave", frozen)]
+pub struct NativeValues {
+    pub panel_order: Vec<f64>,
+}
+
+/// Per-row values as the wrapper passes them: kept native (panel order) or an array in the
+/// caller's row order.
+#[derive(FromPyObject)]
+pub enum RawValues<'py> {
+    Native(PyRef<'py, NativeValues>),
+    Array(PyReadonlyArray1<'py, f64>),
+}
+
+impl RawValues<'_> {
+    /// The values in panel order.
+    pub fn panel_order(&self, panel: &NativePanel, argument: &str) -> PyResult<Vec<f64>> {
+        match self {
+            RawValues::Native(v) => Ok(v.panel_order.clone()),
+            RawValues::Array(a) => panel.inner.from_input_order(argument, &vec(a)).py_err(),
+        }
+    }
+}
+
+/// (residuals, fitted, JSON of the rest, the residuals kept native).
+pub type ResidualParts<'py> = (
+    Bound<'py, PyArray1<f64>>,
+    Bound<'py, PyArray1<f64>>,
+    String,
+    NativeValues,
+);
 
 /// Residuals of a mean model: (residuals, fitted) in the caller's row order, and the rest
 /// (model, coefficients, groups) as JSON.
@@ -80,6 +110,9 @@ pub fn panel_residuals<'py>(
         p.to_input_order(&r.residuals).into_pyarray(py),
         p.to_input_order(&r.fitted).into_pyarray(py),
         serde_json::to_string(&meta).map_err(json_err)?,
+        NativeValues {
+            panel_order: r.residuals,
+        },
     ))
 }
 
@@ -117,24 +150,17 @@ impl NativeRanking {
     }
 }
 
-fn panel_order(panel: &NativePanel, values: &PyReadonlyArray1<'_, f64>) -> PyResult<Vec<f64>> {
-    panel
-        .inner
-        .from_input_order("residuals", &vec(values))
-        .py_err()
-}
-
 #[pyfunction]
 #[pyo3(signature = (panel, residuals, summary, p=None))]
 pub fn panel_rank_subjects(
     py: Python<'_>,
     panel: &NativePanel,
-    residuals: PyReadonlyArray1<'_, f64>,
+    residuals: RawValues<'_>,
     summary: &str,
     p: Option<f64>,
 ) -> PyResult<NativeRanking> {
     let summary = Summary::parse(summary, p).py_err()?;
-    let r = panel_order(panel, &residuals)?;
+    let r = residuals.panel_order(panel, "residuals")?;
     let inner = py
         .detach(|| rank_subjects(&panel.inner, &r, summary))
         .py_err()?;
@@ -145,11 +171,11 @@ pub fn panel_rank_subjects(
 pub fn panel_pick_subjects(
     py: Python<'_>,
     panel: &NativePanel,
-    residuals: PyReadonlyArray1<'_, f64>,
+    residuals: RawValues<'_>,
     ranking: &NativeRanking,
     quantiles: Vec<f64>,
 ) -> PyResult<String> {
-    let r = panel_order(panel, &residuals)?;
+    let r = residuals.panel_order(panel, "residuals")?;
     let picks = py
         .detach(|| pick_subjects(&panel.inner, &r, &ranking.inner, &quantiles))
         .py_err()?;
@@ -178,12 +204,12 @@ pub fn panel_sample_subjects(
 pub fn panel_unusual(
     py: Python<'_>,
     panel: &NativePanel,
-    residuals: PyReadonlyArray1<'_, f64>,
+    residuals: RawValues<'_>,
     ranking: &NativeRanking,
     subject_threshold: f64,
     observation_threshold: f64,
 ) -> PyResult<String> {
-    let r = panel_order(panel, &residuals)?;
+    let r = residuals.panel_order(panel, "residuals")?;
     let u = py
         .detach(|| {
             unusual(

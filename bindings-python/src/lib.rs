@@ -31,6 +31,7 @@ fn _trajweave(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(covariates::panel_dropout_curves, m)?)?;
     m.add_function(wrap_pyfunction!(covariates::panel_trajectory_grid, m)?)?;
     m.add_class::<individuals::NativeRanking>()?;
+    m.add_class::<individuals::NativeValues>()?;
     m.add_function(wrap_pyfunction!(individuals::panel_residuals, m)?)?;
     m.add_function(wrap_pyfunction!(individuals::panel_rank_subjects, m)?)?;
     m.add_function(wrap_pyfunction!(individuals::panel_pick_subjects, m)?)?;

@@ -15,6 +15,7 @@ import json
 
 from . import _trajweave
 from ._record import Record
+from .individuals import _values
 from .panel import _floats
 
 
@@ -73,5 +74,5 @@ def trajectory_grid(panel, values, order_by, edges=None, schedule=None, toleranc
     """Subjects x time bins of the mean of ``values`` (per row, your row order), rows ordered
     by ``order_by`` (one value per subject, in ``panel.subject_ids`` order)."""
     return TrajectoryGrid(*_trajweave.panel_trajectory_grid(
-        panel._native, _floats("values", values), _floats("order_by", order_by),
+        panel._native, _values(panel, values, "values"), _floats("order_by", order_by),
         **_grid(edges, schedule, tolerance)))

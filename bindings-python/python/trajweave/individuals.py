@@ -57,8 +57,12 @@ class Residuals(np.ndarray):
     ``coefficients`` (polynomial, original time scale, intercept first) and ``groups``."""
 
     def __array_finalize__(self, obj):
+        # Slices and arithmetic make plain per-row arrays: only the result of residuals()
+        # itself carries the native panel-order copy.
         for name in ("fitted", "model", "coefficients", "groups"):
             setattr(self, name, getattr(obj, name, None))
+        self._native = None
+        self._panel = None
 
 
 def residuals(panel, mean):
@@ -67,12 +71,21 @@ def residuals(panel, mean):
     ``mean``: a :class:`~trajweave.Curve` or :class:`~trajweave.MeanCurve`, ``Polynomial(d)``
     or ``ByGroup(covariate, smoother)``.
     """
-    values, fitted, meta = _trajweave.panel_residuals(panel._native, _mean(mean))
+    values, fitted, meta, native = _trajweave.panel_residuals(panel._native, _mean(mean))
     out = values.view(Residuals)
+    out._native, out._panel = native, panel
     meta = json.loads(meta)
     out.fitted, out.model = fitted, meta["model"]
     out.coefficients, out.groups = meta["coefficients"], meta["groups"]
     return out
+
+
+def _values(panel, values, name):
+    """The native panel-order copy when ``values`` came from residuals() on this panel and is
+    unchanged, else the array in the caller's row order."""
+    if isinstance(values, Residuals) and values._native is not None and values._panel is panel:
+        return values._native
+    return _floats(name, values)
 
 
 class Ranking:
@@ -101,14 +114,14 @@ class Ranking:
 def rank_subjects(panel, residuals, summary="median", p=None):
     """Ranks subjects by a summary of their residuals: "median", "mean", "quantile" (with
     ``p``), "rms", "max_abs" or "slope"."""
-    native = _trajweave.panel_rank_subjects(panel._native, _floats("residuals", residuals), summary,
+    native = _trajweave.panel_rank_subjects(panel._native, _values(panel, residuals, "residuals"), summary,
                                             None if p is None else float(p))
     return Ranking(native)
 
 
 def pick_subjects(panel, residuals, ranking, quantiles):
     """The subject at each quantile of the ranking, with its time, response and residual."""
-    return json.loads(_trajweave.panel_pick_subjects(panel._native, _floats("residuals", residuals),
+    return json.loads(_trajweave.panel_pick_subjects(panel._native, _values(panel, residuals, "residuals"),
                                                      ranking._native, [float(q) for q in quantiles]))
 
 
@@ -123,5 +136,5 @@ def unusual(panel, residuals, ranking, subject_threshold=3.5, observation_thresh
     """Subjects whose summary is beyond a robust z threshold, and observations whose
     standardised residual is."""
     return Record(json.loads(_trajweave.panel_unusual(
-        panel._native, _floats("residuals", residuals), ranking._native,
+        panel._native, _values(panel, residuals, "residuals"), ranking._native,
         float(subject_threshold), float(observation_threshold))))
