@@ -141,6 +141,9 @@ pub struct Panel {
     response: Vec<f64>,
     covariates: Vec<PanelCovariate>,
     order: Vec<usize>,
+    /// `position[row]` is the panel row of input row `row`, `usize::MAX` when dropped: the
+    /// inverse of `order`, so returning per-row results is a parallel gather.
+    position: Vec<usize>,
     n_input: usize,
     dropped_rows: Vec<usize>,
 }
@@ -267,6 +270,7 @@ impl Panel {
             time: kept.iter().map(|&r| t_of(r)).collect(),
             response: kept.iter().map(|&r| response[r]).collect(),
             covariates,
+            position: inverse(&kept, n),
             order: kept,
             n_input: n,
             dropped_rows,
@@ -335,11 +339,10 @@ impl Panel {
     /// Never for `values` of length [`Panel::n_obs`]; extra values are ignored and missing ones
     /// read as NaN.
     pub fn to_input_order(&self, values: &[f64]) -> Vec<f64> {
-        let mut out = vec![f64::NAN; self.n_input];
-        for (&row, &v) in self.order.iter().zip(values) {
-            out[row] = v;
-        }
-        out
+        self.position
+            .par_iter()
+            .map(|&k| values.get(k).copied().unwrap_or(f64::NAN))
+            .collect()
     }
 }
 
@@ -370,7 +373,7 @@ impl Panel {
             });
         }
         self.order
-            .iter()
+            .par_iter()
             .map(|&row| {
                 let v = values[row];
                 if v.is_finite() {
@@ -381,6 +384,15 @@ impl Panel {
             })
             .collect()
     }
+}
+
+/// The inverse of a permutation of the kept rows; dropped rows map to `usize::MAX`.
+fn inverse(order: &[usize], n_input: usize) -> Vec<usize> {
+    let mut position = vec![usize::MAX; n_input];
+    for (k, &row) in order.iter().enumerate() {
+        position[row] = k;
+    }
+    position
 }
 
 fn check_len(argument: &str, found: usize, expected: usize) -> Result<()> {
