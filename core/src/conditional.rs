@@ -163,20 +163,7 @@ pub(crate) fn fit_on_grid(
     name: &str,
 ) -> Result<(crate::curve::Curve, Vec<f64>)> {
     let (t, y): (Vec<f64>, Vec<f64>) = clusters.iter().flatten().copied().unzip();
-    let curve = smoother.fit(&t, &y).map_err(|e| match e {
-        Error::TooFew {
-            what,
-            estimate,
-            needed,
-            found,
-        } => Error::TooFew {
-            what,
-            estimate: format!("{estimate} in {name}"),
-            needed,
-            found,
-        },
-        other => other,
-    })?;
+    let curve = smoother.fit(&t, &y).map_err(|e| e.within(name))?;
     let (lo, hi) = (curve.x[0], curve.x[curve.x.len() - 1]);
     let fitted = at
         .iter()

@@ -135,6 +135,25 @@ impl Error {
         }
     }
 
+    /// A [`Error::TooFew`] from a fit of part of the data, told which part (`estimate` gains
+    /// " in {part}"); other errors unchanged.
+    pub(crate) fn within(self, part: &str) -> Error {
+        match self {
+            Error::TooFew {
+                what,
+                estimate,
+                needed,
+                found,
+            } => Error::TooFew {
+                what,
+                estimate: format!("{estimate} in {part}"),
+                needed,
+                found,
+            },
+            other => other,
+        }
+    }
+
     pub(crate) fn option(argument: &str, value: impl std::fmt::Display, allowed: &str) -> Self {
         Error::InvalidOption {
             argument: argument.to_string(),

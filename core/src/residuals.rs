@@ -298,23 +298,7 @@ fn to_original_scale(beta: &[f64], c: f64, s: f64) -> Vec<f64> {
 }
 
 fn by_group(panel: &Panel, name: &str, smoother: &Smoother) -> Result<(Vec<f64>, Vec<GroupFit>)> {
-    let cov = panel
-        .covariates()
-        .iter()
-        .find(|c| c.name == name)
-        .ok_or_else(|| {
-            let names: Vec<String> = panel
-                .covariates()
-                .iter()
-                .map(|c| format!("{:?}", c.name))
-                .collect();
-            let allowed = if names.is_empty() {
-                "the panel has no covariates; pass one when building the panel".to_string()
-            } else {
-                format!("use one of the panel's covariates: {}", names.join(", "))
-            };
-            Error::option("covariate", format!("{name:?}"), &allowed)
-        })?;
+    let cov = crate::bands::find_covariate(panel, name)?;
     let mut levels: Vec<f64> = Vec::new();
     for &v in &cov.values {
         if !levels.contains(&v) {
@@ -336,20 +320,9 @@ fn by_group(panel: &Panel, name: &str, smoother: &Smoother) -> Result<(Vec<f64>,
             let rows: Vec<usize> = (0..t.len()).filter(|&k| cov.values[k] == level).collect();
             let x: Vec<f64> = rows.iter().map(|&k| t[k]).collect();
             let yy: Vec<f64> = rows.iter().map(|&k| y[k]).collect();
-            let curve = smoother.fit(&x, &yy).map_err(|e| match e {
-                Error::TooFew {
-                    what,
-                    estimate,
-                    needed,
-                    found,
-                } => Error::TooFew {
-                    what,
-                    estimate: format!("{estimate} in level {level} of `{name}`"),
-                    needed,
-                    found,
-                },
-                other => other,
-            })?;
+            let curve = smoother
+                .fit(&x, &yy)
+                .map_err(|e| e.within(&format!("level {level} of `{name}`")))?;
             Ok((rows, curve))
         })
         .collect();
