@@ -42,6 +42,15 @@ panel_from_frame <- function(data, subject, time, response, covariates = charact
   panel(subject, time, response, covariates = as.list(data)[covariates], missing = missing)
 }
 
+# The panel's subject ids in sorted order: the order of per-subject inputs such as
+# trajectory_grid()'s order_by.
+panel_subject_ids <- function(panel) {
+  if (!inherits(panel, "trajweave_panel")) {
+    tw_stop_option("panel", panel, "build one with panel() or panel_from_frame()")
+  }
+  tw_value(.Call(wrap__tw_panel_info, panel[["pointer"]]))$subject_ids
+}
+
 print.trajweave_panel <- function(x, ...) {
   info <- tw_value(.Call(wrap__tw_panel_info, x[["pointer"]]))
   cat("<trajweave panel>\n")

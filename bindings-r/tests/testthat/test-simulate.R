@@ -64,3 +64,11 @@ test_that("a simulated panel goes through panel_from_frame and describe", {
   expect_identical(d$covariates$name, c("age", "female", "diabetes", "acr"))
   expect_identical(d$covariates$time_fixed, rep(TRUE, 4))
 })
+
+test_that("panel_subject_ids gives the panel's ids in sorted order", {
+  # Base R reference: sort(unique(ids)).
+  p <- panel(c(3L, 1L, 3L, 2L), c(0, 0, 1, 0), c(1, 2, 3, 4))
+  expect_identical(panel_subject_ids(p), as.double(sort(unique(c(3L, 1L, 3L, 2L)))))
+  q <- panel(c("b", "a", "b"), c(0, 0, 1), c(1, 2, 3))
+  expect_identical(panel_subject_ids(q), c("a", "b"))
+})

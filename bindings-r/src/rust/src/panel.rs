@@ -129,6 +129,7 @@ fn info(x: &Robj) -> Outcome {
             "rows_input",
             "rows_dropped",
             "covariates",
+            "subject_ids",
         ]
         .into_iter(),
         vec![
@@ -137,6 +138,7 @@ fn info(x: &Robj) -> Outcome {
             (p.n_input_rows() as f64).into(),
             (p.dropped_rows().len() as f64).into(),
             Strings::from_values(covariates).into(),
+            crate::convert::ids_robj(p.ids(), crate::convert::text_ids(p)),
         ],
     )
 }
