@@ -2,6 +2,8 @@
 //! Per-row values cross in the caller's row order; the core works in panel order, and the
 //! panel converts (`to_input_order`, `from_input_order`).
 
+use std::borrow::Cow;
+
 use numpy::{IntoPyArray, PyArray1, PyReadonlyArray1};
 use pyo3::prelude::*;
 use pyo3::types::PyList;
@@ -77,23 +79,26 @@ pub enum RawValues<'py> {
 
 impl RawValues<'_> {
     /// The values in panel order.
-    pub fn panel_order(&self, panel: &NativePanel, argument: &str) -> PyResult<Vec<f64>> {
+    pub fn panel_order(&self, panel: &NativePanel, argument: &str) -> PyResult<Cow<'_, [f64]>> {
         match self {
-            RawValues::Native(v) => Ok(v.panel_order.clone()),
-            RawValues::Array(a) => panel.inner.from_input_order(argument, &vec(a)).py_err(),
+            RawValues::Native(v) => Ok(Cow::Borrowed(&v.panel_order)),
+            RawValues::Array(a) => Ok(Cow::Owned(
+                panel.inner.from_input_order(argument, &vec(a)).py_err()?,
+            )),
         }
     }
 }
 
-/// (residuals, fitted, JSON of the rest, the residuals kept native).
+/// (residuals in the caller's order, JSON of the rest, residuals and fitted values kept
+/// native in panel order).
 pub type ResidualParts<'py> = (
-    Bound<'py, PyArray1<f64>>,
     Bound<'py, PyArray1<f64>>,
     String,
     NativeValues,
+    NativeValues,
 );
 
-/// Residuals of a mean model: (residuals, fitted) in the caller's row order, and the rest
+/// Residuals of a mean model: residuals in the caller's row order, and the rest
 /// (model, coefficients, groups) as JSON.
 #[pyfunction]
 pub fn panel_residuals<'py>(
@@ -108,12 +113,27 @@ pub fn panel_residuals<'py>(
     let p = &panel.inner;
     Ok((
         p.to_input_order(&r.residuals).into_pyarray(py),
-        p.to_input_order(&r.fitted).into_pyarray(py),
         serde_json::to_string(&meta).map_err(json_err)?,
         NativeValues {
             panel_order: r.residuals,
         },
+        NativeValues {
+            panel_order: r.fitted,
+        },
     ))
+}
+
+/// Native per-row values in the caller's row order (on demand, e.g. fitted values).
+#[pyfunction]
+pub fn input_order<'py>(
+    py: Python<'py>,
+    panel: &NativePanel,
+    values: &NativeValues,
+) -> Bound<'py, PyArray1<f64>> {
+    panel
+        .inner
+        .to_input_order(&values.panel_order)
+        .into_pyarray(py)
 }
 
 /// A ranking kept native, so it can be handed back to `pick_subjects` and friends.

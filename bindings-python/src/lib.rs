@@ -33,6 +33,7 @@ fn _trajweave(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<individuals::NativeRanking>()?;
     m.add_class::<individuals::NativeValues>()?;
     m.add_function(wrap_pyfunction!(individuals::panel_residuals, m)?)?;
+    m.add_function(wrap_pyfunction!(individuals::input_order, m)?)?;
     m.add_function(wrap_pyfunction!(individuals::panel_rank_subjects, m)?)?;
     m.add_function(wrap_pyfunction!(individuals::panel_pick_subjects, m)?)?;
     m.add_function(wrap_pyfunction!(individuals::panel_sample_subjects, m)?)?;

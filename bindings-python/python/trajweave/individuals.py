@@ -53,16 +53,26 @@ def _mean(mean):
 
 
 class Residuals(np.ndarray):
-    """Residuals in your row order (a numpy array), with ``fitted``, ``model``,
-    ``coefficients`` (polynomial, original time scale, intercept first) and ``groups``."""
+    """Residuals in your row order (a numpy array), with ``fitted`` (computed on first use),
+    ``model``, ``coefficients`` (polynomial, original time scale, intercept first) and
+    ``groups``."""
 
     def __array_finalize__(self, obj):
         # Slices and arithmetic make plain per-row arrays: only the result of residuals()
-        # itself carries the native panel-order copy.
-        for name in ("fitted", "model", "coefficients", "groups"):
+        # itself carries the native panel-order copies.
+        for name in ("model", "coefficients", "groups"):
             setattr(self, name, getattr(obj, name, None))
         self._native = None
         self._panel = None
+        self._fitted_native = None
+        self._fitted = None
+
+    @property
+    def fitted(self):
+        """Fitted values of the mean model, in your row order."""
+        if self._fitted is None and self._fitted_native is not None:
+            self._fitted = _trajweave.input_order(self._panel._native, self._fitted_native)
+        return self._fitted
 
 
 def residuals(panel, mean):
@@ -71,11 +81,11 @@ def residuals(panel, mean):
     ``mean``: a :class:`~trajweave.Curve` or :class:`~trajweave.MeanCurve`, ``Polynomial(d)``
     or ``ByGroup(covariate, smoother)``.
     """
-    values, fitted, meta, native = _trajweave.panel_residuals(panel._native, _mean(mean))
+    values, meta, native, fitted = _trajweave.panel_residuals(panel._native, _mean(mean))
     out = values.view(Residuals)
-    out._native, out._panel = native, panel
+    out._native, out._panel, out._fitted_native = native, panel, fitted
     meta = json.loads(meta)
-    out.fitted, out.model = fitted, meta["model"]
+    out.model = meta["model"]
     out.coefficients, out.groups = meta["coefficients"], meta["groups"]
     return out
 
@@ -94,12 +104,20 @@ class Ranking:
 
     def __init__(self, native):
         self._native = native
+        self._cache = {}
         self.summary = json.loads(native.summary_json())
-        self.subjects = native.subjects
-        self.values = native.values
-        self.ranks = native.ranks
-        self.observations = native.observations
-        self.unranked = native.unranked
+
+    def _get(self, name):
+        # Built on first use: a list of a million ids costs more than the ranking's fields.
+        if name not in self._cache:
+            self._cache[name] = getattr(self._native, name)
+        return self._cache[name]
+
+    subjects = property(lambda self: self._get("subjects"), doc="Ranked subjects, smallest first.")
+    values = property(lambda self: self._get("values"), doc="Each ranked subject's summary.")
+    ranks = property(lambda self: self._get("ranks"), doc="Ranks, 1-based.")
+    observations = property(lambda self: self._get("observations"), doc="Observations per subject.")
+    unranked = property(lambda self: self._get("unranked"), doc="Subjects without a defined summary.")
 
     def to_dict(self):
         """Every field as plain Python values."""
