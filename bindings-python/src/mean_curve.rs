@@ -24,8 +24,9 @@ pub fn panel_mean_curve<'py>(
     let s = build(family, options)?;
     let at = at.map(|a| vec(&a));
     let boot = bootstrap
-        .map(|(reps, level, seed)| bootstrap_options(reps, level, seed))
-        .transpose()?;
+        .map(|(reps, level, seed)| BootstrapOptions::from_numbers(reps, level, seed))
+        .transpose()
+        .py_err()?;
     let m = py
         .detach(|| mean_curve(&panel.inner, &s, at.as_deref(), boot.as_ref()))
         .py_err()?;
@@ -47,32 +48,4 @@ pub fn panel_mean_curve<'py>(
         None => out.set_item("band", py.None())?,
     }
     Ok(out)
-}
-
-/// Bootstrap settings from numbers, with the core's range checks; whole numbers are checked
-/// here because Python passes floats.
-fn bootstrap_options(reps: f64, level: f64, seed: f64) -> PyResult<BootstrapOptions> {
-    let whole = |name: &str, v: f64, max: f64, allowed: &str| -> PyResult<u64> {
-        if v.fract() == 0.0 && (0.0..=max).contains(&v) {
-            Ok(v as u64)
-        } else {
-            Err(crate::errors::to_py(trajweave_core::Error::InvalidOption {
-                argument: name.into(),
-                value: format!("{v}"),
-                allowed: allowed.into(),
-            }))
-        }
-    };
-    let o = BootstrapOptions {
-        reps: whole("reps", reps, 1e9, "a whole number from 10 to 100000")? as usize,
-        level,
-        seed: whole(
-            "seed",
-            seed,
-            9_007_199_254_740_991.0,
-            "a whole number from 0 to 2^53 - 1",
-        )?,
-    };
-    o.validate().py_err()?;
-    Ok(o)
 }

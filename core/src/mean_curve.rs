@@ -21,6 +21,8 @@ use crate::quantile::quantile_sorted;
 use crate::rng::Rng;
 use crate::smoother::Smoother;
 
+const REPS_ALLOWED: &str = "a whole number from 10 to 100000";
+
 /// Settings of the subject bootstrap.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct BootstrapOptions {
@@ -43,6 +45,42 @@ impl Default for BootstrapOptions {
 }
 
 impl BootstrapOptions {
+    /// Settings from numbers as a front hands them over (R and Python pass doubles): `reps`
+    /// and `seed` must be whole, then every range is checked.
+    ///
+    /// # Examples
+    /// ```
+    /// use trajweave_core::mean_curve::BootstrapOptions;
+    /// # fn main() -> trajweave_core::Result<()> {
+    /// assert_eq!(BootstrapOptions::from_numbers(50.0, 0.9, 7.0)?.reps, 50);
+    /// assert!(BootstrapOptions::from_numbers(50.5, 0.9, 7.0).is_err());
+    /// # Ok(()) }
+    /// ```
+    ///
+    /// # Errors
+    /// [`Error::InvalidOption`] naming the option that is not whole or is out of range.
+    pub fn from_numbers(reps: f64, level: f64, seed: f64) -> Result<BootstrapOptions> {
+        let whole = |name: &str, v: f64, max: f64, allowed: &str| {
+            if v.fract() == 0.0 && (0.0..=max).contains(&v) {
+                Ok(v)
+            } else {
+                Err(Error::option(name, v, allowed))
+            }
+        };
+        let o = BootstrapOptions {
+            reps: whole("reps", reps, 1e15, REPS_ALLOWED)? as usize,
+            level,
+            seed: whole(
+                "seed",
+                seed,
+                9_007_199_254_740_991.0,
+                "a whole number from 0 to 2^53 - 1",
+            )? as u64,
+        };
+        o.validate()?;
+        Ok(o)
+    }
+
     /// Checks the ranges.
     ///
     /// # Errors

@@ -4,7 +4,7 @@
 use extendr_api::prelude::*;
 use trajweave_core::mean_curve::{mean_curve, BootstrapOptions};
 
-use crate::convert::{field, named_fields, named_list, one_number, optional_reals, whole_number};
+use crate::convert::{field, named_fields, named_list, one_number, optional_reals};
 use crate::error::{respond, Failure, Outcome};
 use crate::panel::panel_ref;
 use crate::smoother::{build, curve_robj};
@@ -13,19 +13,15 @@ use crate::smoother::{build, curve_robj};
 pub const MAX_SEED: f64 = 9_007_199_254_740_991.0;
 /// How the seed's range is worded.
 pub const SEED_ALLOWED: &str = "a whole number from 0 to 2^53 - 1";
-const REPS_ALLOWED: &str = "a whole number from 10 to 100000";
 
-/// Bootstrap settings from R numbers: whole numbers checked here (R passes doubles), ranges by
-/// the core's [`BootstrapOptions::validate`].
+/// Bootstrap settings from R numbers, checked by the core (whole numbers and ranges).
 fn bootstrap_options(reps: &Robj, level: &Robj, seed: &Robj) -> Result<BootstrapOptions, Failure> {
-    let options = BootstrapOptions {
-        // Any whole number fits usize; the core then words the range.
-        reps: whole_number(reps, "reps", 1e15, REPS_ALLOWED)? as usize,
-        level: one_number(level, "level")?,
-        seed: whole_number(seed, "seed", MAX_SEED, SEED_ALLOWED)?,
-    };
-    options.validate()?;
-    Ok(options)
+    let (reps, level, seed) = (
+        one_number(reps, "reps")?,
+        one_number(level, "level")?,
+        one_number(seed, "seed")?,
+    );
+    Ok(BootstrapOptions::from_numbers(reps, level, seed)?)
 }
 
 fn bootstrap_robj(o: &BootstrapOptions) -> Outcome {
