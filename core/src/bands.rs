@@ -77,13 +77,7 @@ pub struct Bands {
 /// [`Error::TooFew`] when there are fewer values than `number`.
 pub fn equal_count_bands(values: &[f64], number: usize, overlap: f64) -> Result<Bands> {
     check_options(number, overlap)?;
-    if let Some(row) = values.iter().position(|v| !v.is_finite()) {
-        return Err(Error::NonFinite {
-            argument: "values".into(),
-            row: row + 1,
-            value: format!("{}", values[row]),
-        });
-    }
+    crate::curve::check_finite("values", values)?;
     bands_of(values, number, overlap, "values")
 }
 

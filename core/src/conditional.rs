@@ -30,7 +30,7 @@ use serde::Serialize;
 
 use crate::bands::{find_covariate, Band, Bands};
 use crate::error::{Error, Result};
-use crate::mean_curve::default_grid;
+use crate::mean_curve::resolve_grid;
 use crate::panel::Panel;
 use crate::smoother::Smoother;
 
@@ -125,23 +125,6 @@ pub fn conditional_trends(
         trends,
         se_kind: SE_KIND.into(),
     })
-}
-
-/// The given grid (checked finite) or the default one.
-pub(crate) fn resolve_grid(panel: &Panel, at: Option<&[f64]>) -> Result<Vec<f64>> {
-    match at {
-        Some(a) => {
-            if let Some(row) = a.iter().position(|v| !v.is_finite()) {
-                return Err(Error::NonFinite {
-                    argument: "at".into(),
-                    row: row + 1,
-                    value: format!("{}", a[row]),
-                });
-            }
-            Ok(a.to_vec())
-        }
-        None => Ok(default_grid(panel)),
-    }
 }
 
 /// (time, response) of the given panel rows of one subject, ordered by (time, response): rows

@@ -149,6 +149,22 @@ impl OptionValue {
     }
 }
 
+/// Checks that every value of `argument` is finite, naming the first that is not (counted
+/// from 1).
+///
+/// # Errors
+/// [`Error::NonFinite`].
+pub fn check_finite(argument: &str, values: &[f64]) -> Result<()> {
+    match values.iter().position(|v| !v.is_finite()) {
+        None => Ok(()),
+        Some(row) => Err(Error::NonFinite {
+            argument: argument.into(),
+            row: row + 1,
+            value: format!("{}", values[row]),
+        }),
+    }
+}
+
 /// Checks paired x and y for a smoother: equal lengths, finite values, at least `min_distinct`
 /// distinct x values.
 ///
@@ -163,15 +179,8 @@ pub fn check_xy(x: &[f64], y: &[f64], estimate: &str, min_distinct: usize) -> Re
             found: y.len(),
         });
     }
-    for (name, v) in [("x", x), ("y", y)] {
-        if let Some(row) = v.iter().position(|a| !a.is_finite()) {
-            return Err(Error::NonFinite {
-                argument: name.into(),
-                row: row + 1,
-                value: format!("{}", v[row]),
-            });
-        }
-    }
+    check_finite("x", x)?;
+    check_finite("y", y)?;
     // Stop as soon as enough distinct values are seen: O(n min_distinct) at worst, and
     // min_distinct is a small constant.
     let mut seen: Vec<f64> = Vec::with_capacity(min_distinct);

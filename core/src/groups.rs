@@ -21,10 +21,11 @@ use rayon::prelude::*;
 use serde::Serialize;
 
 use crate::bands::find_covariate;
-use crate::conditional::{canonical_pairs, fit_on_grid, resolve_grid};
+use crate::conditional::{canonical_pairs, fit_on_grid};
 use crate::curve::Curve;
 use crate::error::{Error, Result};
 use crate::grid::TimeGrid;
+use crate::mean_curve::resolve_grid;
 use crate::panel::Panel;
 use crate::smoother::Smoother;
 

@@ -34,7 +34,9 @@
 
 use serde::Serialize;
 
-use crate::curve::{check_xy, distinct_points, sort_by_x, Curve, Diagnostics, OptionValue};
+use crate::curve::{
+    check_finite, check_xy, distinct_points, sort_by_x, Curve, Diagnostics, OptionValue,
+};
 use crate::error::{Error, Result};
 use crate::quantile::quantile_sorted;
 
@@ -256,13 +258,7 @@ pub fn kernel_smooth_at(
     at: &[f64],
     options: &KernelOptions,
 ) -> Result<Vec<f64>> {
-    if let Some(row) = at.iter().position(|a| !a.is_finite()) {
-        return Err(Error::NonFinite {
-            argument: "at".into(),
-            row: row + 1,
-            value: format!("{}", at[row]),
-        });
-    }
+    check_finite("at", at)?;
     let (xs, ys, h, evaluation) = prepare(x, y, options)?;
     let mut order: Vec<usize> = (0..at.len()).collect();
     order.sort_by(|&a, &b| at[a].total_cmp(&at[b]));

@@ -14,7 +14,7 @@
 use rayon::prelude::*;
 use serde::Serialize;
 
-use crate::curve::Curve;
+use crate::curve::{check_finite, Curve};
 use crate::error::{Error, Result};
 use crate::panel::Panel;
 use crate::quantile::quantile_sorted;
@@ -140,6 +140,14 @@ pub fn default_grid(panel: &Panel) -> Vec<f64> {
         .collect()
 }
 
+/// The given grid (checked finite) or [`default_grid`].
+pub(crate) fn resolve_grid(panel: &Panel, at: Option<&[f64]>) -> Result<Vec<f64>> {
+    match at {
+        Some(a) => check_finite("at", a).map(|()| a.to_vec()),
+        None => Ok(default_grid(panel)),
+    }
+}
+
 /// Fits the mean curve of response on time, optionally with a subject-bootstrap band.
 ///
 /// # Examples
@@ -165,19 +173,7 @@ pub fn mean_curve(
     at: Option<&[f64]>,
     bootstrap: Option<&BootstrapOptions>,
 ) -> Result<MeanCurve> {
-    let at = match at {
-        Some(a) => {
-            if let Some(row) = a.iter().position(|v| !v.is_finite()) {
-                return Err(Error::NonFinite {
-                    argument: "at".into(),
-                    row: row + 1,
-                    value: format!("{}", a[row]),
-                });
-            }
-            a.to_vec()
-        }
-        None => default_grid(panel),
-    };
+    let at = resolve_grid(panel, at)?;
     let curve = smoother.fit(panel.time(), panel.response())?;
     let fitted = curve.predict(&at);
     let band = match bootstrap {

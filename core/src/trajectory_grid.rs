@@ -91,13 +91,7 @@ pub fn trajectory_grid(
             value: format!("{}", values[k]),
         });
     }
-    if let Some(i) = order_by.iter().position(|v| !v.is_finite()) {
-        return Err(Error::NonFinite {
-            argument: "order_by".into(),
-            row: i + 1,
-            value: format!("{}", order_by[i]),
-        });
-    }
+    crate::curve::check_finite("order_by", order_by)?;
 
     // Sort on (order key, subject index): integer keys compare faster than doubles, and the
     // pair is a total order, so the unstable parallel sort has one possible result.
