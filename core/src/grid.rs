@@ -57,6 +57,36 @@ impl TimeGrid {
         Ok(TimeGrid::Edges { edges })
     }
 
+    /// `bins` bins of equal width from `lower` to `upper` (the last edge is `upper` exactly).
+    ///
+    /// # Examples
+    /// ```
+    /// use trajweave_core::TimeGrid;
+    /// # fn main() -> trajweave_core::Result<()> {
+    /// let g = TimeGrid::equal_width(0.0, 8.0, 4)?;
+    /// assert_eq!(g, TimeGrid::edges(vec![0.0, 2.0, 4.0, 6.0, 8.0])?);
+    /// # Ok(()) }
+    /// ```
+    ///
+    /// # Errors
+    /// [`Error::InvalidOption`] for zero bins or limits that are not finite with lower < upper.
+    pub fn equal_width(lower: f64, upper: f64, bins: usize) -> Result<TimeGrid> {
+        if bins == 0 {
+            return Err(Error::option("bins", 0, "give at least one bin"));
+        }
+        if !(lower.is_finite() && upper.is_finite() && lower < upper) {
+            return Err(Error::option(
+                "bins",
+                format!("limits {lower} to {upper}"),
+                "equal-width bins need finite limits with lower < upper (times must vary)",
+            ));
+        }
+        let width = (upper - lower) / bins as f64;
+        let mut edges: Vec<f64> = (0..bins).map(|i| lower + i as f64 * width).collect();
+        edges.push(upper);
+        TimeGrid::edges(edges)
+    }
+
     /// A grid from nominal visit times and a tolerance window.
     ///
     /// # Errors
@@ -167,6 +197,14 @@ impl TimeGrid {
         match self {
             TimeGrid::Edges { edges } => (edges[i], edges[i + 1]),
             TimeGrid::Schedule { times, tolerance } => (times[i] - tolerance, times[i] + tolerance),
+        }
+    }
+
+    /// The centre of bin `i`: its nominal time, or the midpoint of its edges.
+    pub fn centre(&self, i: usize) -> f64 {
+        match self {
+            TimeGrid::Edges { edges } => 0.5 * (edges[i] + edges[i + 1]),
+            TimeGrid::Schedule { times, .. } => times[i],
         }
     }
 

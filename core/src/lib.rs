@@ -17,6 +17,7 @@
 
 pub mod bands;
 pub mod conditional;
+pub mod correlation;
 pub mod curve;
 pub mod describe;
 pub mod error;
@@ -25,6 +26,8 @@ pub mod groups;
 pub mod kernel;
 pub mod lowess;
 pub mod mean_curve;
+pub mod normal;
+pub mod optimize;
 pub mod panel;
 pub mod quantile;
 pub mod ranking;
@@ -38,6 +41,7 @@ pub mod supsmu;
 pub mod trajectory_grid;
 pub mod tune;
 pub mod unusual;
+pub mod variogram;
 
 pub use describe::{describe, Description, Pattern};
 pub use error::{Error, Result};

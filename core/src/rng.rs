@@ -22,6 +22,15 @@ fn splitmix64(state: &mut u64) -> u64 {
     z ^ (z >> 31)
 }
 
+/// A well-mixed 64-bit key for the pair (`a`, `b`) under `seed`: the same on every platform,
+/// so a sample chosen by smallest keys does not depend on the order pairs are visited in.
+pub(crate) fn pair_key(seed: u64, a: u64, b: u64) -> u64 {
+    let mut s = seed ^ a.wrapping_mul(0xD1B5_4A32_D192_ED03);
+    let h = splitmix64(&mut s);
+    let mut s = h ^ b.wrapping_mul(0x8CB9_2BA7_2F3D_8DD7);
+    splitmix64(&mut s)
+}
+
 impl Rng {
     /// The stream for (`seed`, `index`).
     ///
