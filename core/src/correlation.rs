@@ -50,6 +50,24 @@ impl Default for CorrelationOptions {
 }
 
 impl CorrelationOptions {
+    /// Options from a front's numbers (absent ones take their defaults).
+    ///
+    /// # Errors
+    /// [`Error::InvalidOption`] for a level outside (0, 1) or a `min_count` that is not a
+    /// whole number >= 2.
+    pub fn from_numbers(level: Option<f64>, min_count: Option<f64>) -> Result<CorrelationOptions> {
+        let d = CorrelationOptions::default();
+        let o = CorrelationOptions {
+            level: level.unwrap_or(d.level),
+            min_count: match min_count {
+                Some(m) => crate::error::whole_number("min_count", m, 2, u32::MAX as u64)? as usize,
+                None => d.min_count,
+            },
+        };
+        o.check()?;
+        Ok(o)
+    }
+
     fn check(&self) -> Result<()> {
         if !(self.level > 0.0 && self.level < 1.0) {
             return Err(Error::option("level", self.level, "a number in (0, 1)"));

@@ -163,5 +163,23 @@ impl Error {
     }
 }
 
+/// `v` as a whole number in `min..=max`, or an [`Error::InvalidOption`] naming `argument`.
+/// Fronts pass numbers as doubles (R has no integer literal by default), so every count and
+/// seed is checked here once.
+pub(crate) fn whole_number(argument: &str, v: f64, min: u64, max: u64) -> Result<u64> {
+    if v.fract() == 0.0 && v >= min as f64 && v <= max as f64 {
+        Ok(v as u64)
+    } else {
+        Err(Error::option(
+            argument,
+            v,
+            &format!("a whole number from {min} to {max}"),
+        ))
+    }
+}
+
+/// Largest seed every front can pass exactly (2^53 - 1).
+pub const MAX_SEED: u64 = 9_007_199_254_740_991;
+
 /// Shorthand for results of this crate.
 pub type Result<T> = std::result::Result<T, Error>;

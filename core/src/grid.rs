@@ -156,6 +156,53 @@ impl TimeGrid {
         }
     }
 
+    /// The grid a front asks for with `bins` (that many equal-width bins from the first to the
+    /// last of `times`), bin `edges`, or a `schedule` with a `tolerance`: exactly one of them.
+    ///
+    /// # Examples
+    /// ```
+    /// use trajweave_core::TimeGrid;
+    /// # fn main() -> trajweave_core::Result<()> {
+    /// let g = TimeGrid::for_times(&[0.0, 3.0, 6.0], Some(3.0), None, None, None)?;
+    /// assert_eq!(g, TimeGrid::edges(vec![0.0, 2.0, 4.0, 6.0])?);
+    /// assert!(TimeGrid::for_times(&[0.0, 1.0], None, None, None, None).is_err());
+    /// # Ok(()) }
+    /// ```
+    ///
+    /// # Errors
+    /// [`Error::InvalidOption`] when none or several kinds are given, `bins` is not a whole
+    /// number from 1 to 1000, or as [`TimeGrid::from_options`].
+    pub fn for_times(
+        times: &[f64],
+        bins: Option<f64>,
+        edges: Option<Vec<f64>>,
+        schedule: Option<Vec<f64>>,
+        tolerance: Option<f64>,
+    ) -> Result<TimeGrid> {
+        match bins {
+            Some(b) => {
+                if edges.is_some() || schedule.is_some() || tolerance.is_some() {
+                    return Err(Error::option(
+                        "bins",
+                        "given with edges or a schedule",
+                        "give one of: bins, edges, or a schedule with a tolerance",
+                    ));
+                }
+                let k = crate::error::whole_number("bins", b, 1, 1000)? as usize;
+                let lo = times.iter().copied().fold(f64::INFINITY, f64::min);
+                let hi = times.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+                TimeGrid::equal_width(lo, hi, k)
+            }
+            None => TimeGrid::from_options(edges, schedule, tolerance)?.ok_or_else(|| {
+                Error::option(
+                    "bins",
+                    "not given",
+                    "give one of: bins (a count), edges, or a schedule with a tolerance",
+                )
+            }),
+        }
+    }
+
     /// Number of bins.
     pub fn n_bins(&self) -> usize {
         match self {

@@ -30,7 +30,7 @@ pub mod sums;
 use serde::Serialize;
 
 use crate::curve::Curve;
-use crate::error::{Error, Result};
+use crate::error::{whole_number, Error, Result, MAX_SEED};
 use crate::panel::Panel;
 use crate::ranking::check_residuals;
 use crate::smoother::Smoother;
@@ -211,6 +211,44 @@ impl Default for VariogramOptions {
             seed: 1,
             smoother: None,
         }
+    }
+}
+
+impl VariogramOptions {
+    /// Options from a front's values (absent ones take their defaults): lag bins as in
+    /// [`LagBins::from_options`], `sample` as a number of pairs or the text "all".
+    ///
+    /// # Errors
+    /// [`Error::InvalidOption`] naming the option out of range.
+    #[allow(clippy::too_many_arguments)] // one argument per option, as every front has them
+    pub fn from_front(
+        lag_kind: Option<&str>,
+        lag_bins: Option<f64>,
+        lag_edges: Option<Vec<f64>>,
+        max_lag: Option<f64>,
+        min_pairs: Option<f64>,
+        sample: Option<&str>,
+        seed: Option<f64>,
+        smoother: Option<Smoother>,
+    ) -> Result<VariogramOptions> {
+        let d = VariogramOptions::default();
+        Ok(VariogramOptions {
+            bins: LagBins::from_options(lag_kind, lag_bins, lag_edges)?,
+            max_lag,
+            min_pairs: match min_pairs {
+                Some(m) => whole_number("min_pairs", m, 1, u32::MAX as u64)? as usize,
+                None => d.min_pairs,
+            },
+            sample: match sample {
+                Some(s) => SampleSize::from_text(s)?,
+                None => SampleSize::Off,
+            },
+            seed: match seed {
+                Some(s) => whole_number("seed", s, 0, MAX_SEED)?,
+                None => d.seed,
+            },
+            smoother,
+        })
     }
 }
 
