@@ -121,7 +121,7 @@ fn run_residuals(panel: &Robj, mean: &Robj) -> Outcome {
 
 /// Residuals in the caller's row order (a double vector, the R wrapper has applied
 /// `as.double()`), put in panel order and checked by the core.
-fn panel_residuals(panel: &Panel, values: &Robj) -> Result<Vec<f64>, Failure> {
+pub fn panel_residuals(panel: &Panel, values: &Robj) -> Result<Vec<f64>, Failure> {
     Ok(panel.from_input_order("residuals", real_slice(values, "residuals")?)?)
 }
 

@@ -8,11 +8,13 @@
 //! Files mirror the core's modules: `panel.rs`, `describe.rs`, `simulate.rs`, `smoother.rs`
 //! (with the curve's `predict`), `mean_curve.rs`, `tune.rs`, `individuals.rs` (residuals,
 //! ranking, sample, unusual), `covariates.rs` (bands, conditional, groups, trajectory_grid),
-//! `error.rs`; `convert.rs` and `json.rs` hold the R value conversions they share.
+//! `correlation.rs` (binned correlation), `variogram.rs` (variogram and its fit), `error.rs`;
+//! `convert.rs` and `json.rs` hold the R value conversions they share.
 
 use extendr_api::prelude::*;
 
 mod convert;
+mod correlation;
 mod covariates;
 mod describe;
 mod error;
@@ -23,6 +25,7 @@ mod panel;
 mod simulate;
 mod smoother;
 mod tune;
+mod variogram;
 
 extendr_module! {
     mod trajweave;
@@ -35,4 +38,6 @@ extendr_module! {
     use tune;
     use individuals;
     use covariates;
+    use correlation;
+    use variogram;
 }
