@@ -3,6 +3,7 @@
 
 use pyo3::prelude::*;
 
+mod correlation;
 mod covariates;
 mod describe;
 mod errors;
@@ -30,6 +31,9 @@ fn _trajweave(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(covariates::panel_group_curves, m)?)?;
     m.add_function(wrap_pyfunction!(covariates::panel_dropout_curves, m)?)?;
     m.add_function(wrap_pyfunction!(covariates::panel_trajectory_grid, m)?)?;
+    m.add_function(wrap_pyfunction!(correlation::panel_binned_correlation, m)?)?;
+    m.add_function(wrap_pyfunction!(correlation::panel_variogram, m)?)?;
+    m.add_function(wrap_pyfunction!(correlation::variogram_fit, m)?)?;
     m.add_class::<individuals::NativeRanking>()?;
     m.add_class::<individuals::NativeValues>()?;
     m.add_function(wrap_pyfunction!(individuals::panel_residuals, m)?)?;

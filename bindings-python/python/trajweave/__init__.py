@@ -7,6 +7,7 @@
 200
 """
 
+from .correlation import BinnedCorrelation, Variogram, binned_correlation, fit_variogram, variogram
 from .covariates import (
     TrajectoryGrid,
     conditional_trends,
@@ -54,6 +55,11 @@ from .smoothers import (
 from .trend import Bootstrap, MeanCurve, Tuning, mean_curve, tune_smoother
 
 __all__ = [
+    "binned_correlation",
+    "variogram",
+    "fit_variogram",
+    "BinnedCorrelation",
+    "Variogram",
     "Panel",
     "describe",
     "Description",

@@ -12,6 +12,9 @@
 //! gammahat_h^2, clamped at 0); the best of the three is kept. Stops: relative spread 1e-12
 //! or 5000 iterations.
 //!
+//! The range is capped at [`RANGE_CAP`] x the maximum lag (with a warning when it gets
+//! there), since lags beyond those observed cannot tell larger ranges apart.
+//!
 //! The random-intercept variance is nu^2 = process variance - (tau^2 + sigma^2), set to 0 with
 //! a warning when negative (the fitted sill exceeds the process variance).
 
@@ -21,6 +24,9 @@ use crate::error::{Error, Result};
 use crate::optimize::nelder_mead;
 
 use super::Variogram;
+
+/// Largest range, as a multiple of the maximum lag.
+pub const RANGE_CAP: f64 = 10.0;
 
 /// The correlation function of the serial process.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
@@ -181,6 +187,9 @@ pub fn fit_variogram(
             found: bins.len(),
         });
     }
+    // A range far beyond the longest lag is not identified by the data: cap it.
+    let longest = RANGE_CAP * vg.max_lag;
+    let cap = |c: f64| c.exp().min(longest);
     let fits: Vec<_> = [0.1, 0.3, 1.0]
         .iter()
         .map(|share| {
@@ -189,7 +198,7 @@ pub fn fit_variogram(
             let start = [tau2.sqrt(), s2.sqrt(), phi.ln()];
             let scale = start[0].max(start[1]).max(1e-8);
             nelder_mead(
-                |x| criterion(model, &bins, x[0] * x[0], x[1] * x[1], x[2].exp()),
+                |x| criterion(model, &bins, x[0] * x[0], x[1] * x[1], cap(x[2])),
                 &start,
                 &[0.2 * scale, 0.2 * scale, 0.5],
                 1e-12,
@@ -205,8 +214,14 @@ pub fn fit_variogram(
         }
     }
     let (value, x, iterations, converged) = (kept.value, &kept.x, kept.iterations, kept.converged);
-    let (tau2, s2, phi) = (x[0] * x[0], x[1] * x[1], x[2].exp());
+    let (tau2, s2, phi) = (x[0] * x[0], x[1] * x[1], cap(x[2]));
     let mut warnings = Vec::new();
+    if phi >= longest {
+        warnings.push(format!(
+            "the range reached its cap of {RANGE_CAP} x the maximum lag: the variogram keeps \
+             rising over the lags seen (a random slope, or a trend left in the residuals?)"
+        ));
+    }
     if !converged {
         warnings.push("the variogram fit stopped at its iteration cap before converging".into());
     }

@@ -375,6 +375,63 @@ pub struct Variogram {
     pub smoothed_pairs: usize,
 }
 
+impl Variogram {
+    /// A variogram rebuilt from the fields a fit needs, as a front holds them (mean lag, pairs,
+    /// classical and robust estimates per bin with NaN where absent, the maximum lag and the
+    /// process variance), so [`fit::fit_variogram`] gives the same fit from any front.
+    ///
+    /// # Errors
+    /// [`Error::LengthMismatch`] when the per-bin fields differ in length from `lag`;
+    /// [`Error::InvalidOption`] for a `max_lag` that is not finite and > 0.
+    pub fn for_fit(
+        lag: Vec<f64>,
+        pairs: Vec<u64>,
+        classical: Vec<f64>,
+        robust: Vec<f64>,
+        max_lag: f64,
+        process_variance: f64,
+    ) -> Result<Variogram> {
+        for (name, n) in [
+            ("pairs", pairs.len()),
+            ("classical", classical.len()),
+            ("robust", robust.len()),
+        ] {
+            if n != lag.len() {
+                return Err(Error::LengthMismatch {
+                    argument: name.into(),
+                    reference: "lag".into(),
+                    expected: lag.len(),
+                    found: n,
+                });
+            }
+        }
+        if !(max_lag.is_finite() && max_lag > 0.0) {
+            return Err(Error::option("max_lag", max_lag, "a finite number > 0"));
+        }
+        let m = lag.len();
+        Ok(Variogram {
+            lower: vec![f64::NAN; m],
+            upper: vec![f64::NAN; m],
+            pairs_in_bins: pairs.iter().sum(),
+            lag,
+            pairs,
+            classical,
+            robust,
+            min_pairs: 0,
+            max_lag,
+            pairs_outside: 0,
+            process_variance,
+            variance: f64::NAN,
+            between_pairs: f64::NAN,
+            subjects: 0,
+            observations: 0,
+            sample: None,
+            smoothed: None,
+            smoothed_pairs: 0,
+        })
+    }
+}
+
 /// The largest lag of the options, or the longest follow-up in the panel.
 fn resolve_max_lag(panel: &Panel, options: &VariogramOptions) -> Result<f64> {
     match (&options.bins, options.max_lag) {

@@ -1,0 +1,109 @@
+"""Correlation structure of residuals: the binned correlation matrix with counts and Fisher
+intervals, the correlation by bin lag, the empirical variogram with the process variance, and
+a variogram model fitted by weighted least squares (variance components).
+
+Values the core cannot estimate (a cell with too few subjects, a thin lag bin) are ``None``
+in the records, as ``null`` in the CLI's JSON; ``matrix()`` and ``column()`` give numpy
+arrays with NaN instead.
+
+>>> import trajweave as tw
+>>> p = tw.Panel.from_frame(tw.simulate(subjects=300, seed=4, sd_slope=0), "patient", "years", "egfr")
+>>> r = tw.residuals(p, tw.Polynomial(1))
+>>> c = tw.binned_correlation(p, r, bins=8)
+>>> c.matrix().shape
+(8, 8)
+>>> vg = tw.variogram(p, r, max_lag=6)
+>>> fit = tw.fit_variogram(vg)
+>>> fit.range > 0
+True
+"""
+
+import json
+import warnings
+
+import numpy as np
+
+from . import _trajweave
+from ._record import Record
+from .individuals import _values
+from .panel import _floats
+
+
+def _nan(values):
+    return np.array([np.nan if v is None else v for v in values], dtype=float)
+
+
+class BinnedCorrelation(Record):
+    """Correlations between time bins: ``correlation``, ``counts``, ``lower``, ``upper``
+    (flat, row-major k x k), ``bins``, ``centres``, ``means``, ``sds``, ``lags`` and visit
+    counts."""
+
+    __slots__ = ()
+
+    def matrix(self, field="correlation"):
+        """A k x k numpy array of ``field`` ("correlation", "counts", "lower" or "upper")."""
+        k = len(self._data["bins"])
+        return _nan(self._data[field]).reshape(k, k)
+
+
+class Variogram(Record):
+    """An empirical variogram: per lag bin ``lower``, ``upper``, ``lag`` (mean lag),
+    ``pairs``, ``classical``, ``robust``; the ``process_variance``; optional ``sample`` of
+    raw pairs and ``smoothed`` curve."""
+
+    __slots__ = ()
+
+    def column(self, field):
+        """A per-bin field as a numpy array (NaN for missing)."""
+        return _nan(self._data[field])
+
+
+def binned_correlation(panel, residuals, bins=None, edges=None, schedule=None, tolerance=None,
+                       level=0.95, min_count=3):
+    """Pairwise-complete correlation of residuals between time bins.
+
+    Bins: ``bins`` equal-width bins over the observed times, bin ``edges``, or a nominal
+    ``schedule`` with a ``tolerance``. A subject with several visits in a bin contributes the
+    one nearest the bin's centre.
+    """
+    return BinnedCorrelation(json.loads(_trajweave.panel_binned_correlation(
+        panel._native, _values(panel, residuals, "residuals"),
+        bins=None if bins is None else float(bins),
+        edges=None if edges is None else [float(e) for e in edges],
+        schedule=None if schedule is None else [float(s) for s in schedule],
+        tolerance=None if tolerance is None else float(tolerance),
+        level=float(level), min_count=float(min_count))))
+
+
+def variogram(panel, residuals, lag_bins=None, lag_kind=None, lag_edges=None, max_lag=None,
+              min_pairs=30, sample=None, seed=1, smoother=None):
+    """The empirical variogram of within-subject residual pairs and the process variance.
+
+    ``lag_bins`` bins (default 20) of ``lag_kind`` "equal_width" (default) or "equal_count"
+    up to ``max_lag`` (default: the longest follow-up), or given ``lag_edges``; ``sample``: a
+    number of raw pairs to return (seeded) or "all"; ``smoother``: a spec fitted to the raw
+    pairs for a smoothed variogram.
+    """
+    return Variogram(json.loads(_trajweave.panel_variogram(
+        panel._native, _values(panel, residuals, "residuals"),
+        lag_kind=lag_kind, lag_bins=None if lag_bins is None else float(lag_bins),
+        lag_edges=None if lag_edges is None else [float(e) for e in lag_edges],
+        max_lag=None if max_lag is None else float(max_lag),
+        min_pairs=float(min_pairs), sample=None if sample is None else str(sample),
+        seed=float(seed),
+        family=None if smoother is None else smoother.family,
+        options=[] if smoother is None else smoother._pairs())))
+
+
+def fit_variogram(vg, model="exponential", estimate="classical"):
+    """gamma(u) = tau^2 + sigma^2 (1 - rho(u)) fitted to ``vg`` by Cressie's weighted least
+    squares; nu^2 = process variance - (tau^2 + sigma^2), kept >= 0. Each warning of the fit
+    is also issued as a Python ``UserWarning``."""
+    d = vg._data if isinstance(vg, Record) else vg
+    fit = Record(json.loads(_trajweave.variogram_fit(
+        _nan(d["lag"]).tolist(), [int(n) for n in d["pairs"]], _nan(d["classical"]).tolist(),
+        _nan(d["robust"]).tolist(), float(d["max_lag"]), float(d["process_variance"]),
+        model, estimate)))
+    for w in fit.warnings:
+        warnings.warn(w, UserWarning, stacklevel=2)
+    return fit

@@ -1,0 +1,92 @@
+//! Correlation structure: binned correlation, variogram and its model fit. Results cross as
+//! JSON (NaN as null); residuals come in the caller's row order or as the native panel-order
+//! copy from `residuals()`.
+
+use pyo3::prelude::*;
+use trajweave_core::correlation::{binned_correlation, CorrelationOptions};
+use trajweave_core::variogram::fit::{fit_variogram, Estimate, VariogramModel};
+use trajweave_core::variogram::{variogram, Variogram, VariogramOptions};
+use trajweave_core::TimeGrid;
+
+use crate::errors::IntoPy;
+use crate::individuals::RawValues;
+use crate::panel::NativePanel;
+use crate::smoother::{build, json_err, RawOption};
+
+#[allow(clippy::too_many_arguments)] // mirrors the front's keyword arguments
+#[pyfunction]
+#[pyo3(signature = (panel, residuals, bins=None, edges=None, schedule=None, tolerance=None, level=None, min_count=None))]
+pub fn panel_binned_correlation(
+    py: Python<'_>,
+    panel: &NativePanel,
+    residuals: RawValues<'_>,
+    bins: Option<f64>,
+    edges: Option<Vec<f64>>,
+    schedule: Option<Vec<f64>>,
+    tolerance: Option<f64>,
+    level: Option<f64>,
+    min_count: Option<f64>,
+) -> PyResult<String> {
+    let r = residuals.panel_order(panel, "residuals")?;
+    let options = CorrelationOptions::from_numbers(level, min_count).py_err()?;
+    let grid =
+        TimeGrid::for_times(panel.inner.time(), bins, edges, schedule, tolerance).py_err()?;
+    let c = py
+        .detach(|| binned_correlation(&panel.inner, &r, &grid, &options))
+        .py_err()?;
+    serde_json::to_string(&c).map_err(json_err)
+}
+
+#[allow(clippy::too_many_arguments)] // mirrors the front's keyword arguments
+#[pyfunction]
+#[pyo3(signature = (panel, residuals, lag_kind=None, lag_bins=None, lag_edges=None, max_lag=None, min_pairs=None, sample=None, seed=None, family=None, options=Vec::new()))]
+pub fn panel_variogram(
+    py: Python<'_>,
+    panel: &NativePanel,
+    residuals: RawValues<'_>,
+    lag_kind: Option<String>,
+    lag_bins: Option<f64>,
+    lag_edges: Option<Vec<f64>>,
+    max_lag: Option<f64>,
+    min_pairs: Option<f64>,
+    sample: Option<String>,
+    seed: Option<f64>,
+    family: Option<String>,
+    options: Vec<(String, RawOption)>,
+) -> PyResult<String> {
+    let r = residuals.panel_order(panel, "residuals")?;
+    let smoother = family.map(|f| build(&f, options)).transpose()?;
+    let o = VariogramOptions::from_front(
+        lag_kind.as_deref(),
+        lag_bins,
+        lag_edges,
+        max_lag,
+        min_pairs,
+        sample.as_deref(),
+        seed,
+        smoother,
+    )
+    .py_err()?;
+    let v = py.detach(|| variogram(&panel.inner, &r, &o)).py_err()?;
+    serde_json::to_string(&v).map_err(json_err)
+}
+
+#[allow(clippy::too_many_arguments)] // the variogram fields a fit reads, one for one
+#[pyfunction]
+pub fn variogram_fit(
+    lag: Vec<f64>,
+    pairs: Vec<u64>,
+    classical: Vec<f64>,
+    robust: Vec<f64>,
+    max_lag: f64,
+    process_variance: f64,
+    model: &str,
+    estimate: &str,
+) -> PyResult<String> {
+    let vg =
+        Variogram::for_fit(lag, pairs, classical, robust, max_lag, process_variance).py_err()?;
+    let model = VariogramModel::parse(model).py_err()?;
+    let estimate = Estimate::parse(estimate).py_err()?;
+    let f = fit_variogram(&vg, model, estimate).py_err()?;
+    serde_json::to_string(&f).map_err(json_err)
+}

@@ -1,0 +1,226 @@
+"""Binned correlation, variogram, process variance and the variogram fit through the Python
+binding, checked live against numpy (brute-force enumeration of all pairs), pandas
+(DataFrame.corr with min_periods), scipy (normal quantiles, a general-purpose minimiser) and
+closed forms."""
+
+import math
+import warnings
+
+import numpy as np
+import pandas as pd
+import pytest
+from scipy import optimize, stats
+
+import trajweave as tw
+
+
+def irregular(subjects=400, seed=11):
+    """A generated panel with unequal visit counts (1 to 9) and irregular times."""
+    rng = np.random.default_rng(seed)
+    ids, t, r = [], [], []
+    for i in range(subjects):
+        n = int(rng.integers(1, 10))
+        times = np.sort(rng.uniform(0, 8, n))
+        u = rng.normal(0, 2)
+        ids += [i] * n
+        t += list(times)
+        r += list(u + rng.normal(0, 1, n))
+    # Shuffle the rows: the binding must give the same numbers whatever the input order.
+    perm = rng.permutation(len(ids))
+    return (np.array(ids)[perm], np.array(t)[perm], np.array(r)[perm])
+
+
+def all_pairs(ids, t, r):
+    """Every within-subject pair (u, v, |d|) by brute force (numpy)."""
+    us, vs, ds = [], [], []
+    for s in np.unique(ids):
+        m = ids == s
+        ts, rs = t[m], r[m]
+        j, k = np.triu_indices(len(ts), 1)
+        us.append(np.abs(ts[k] - ts[j]))
+        d = rs[k] - rs[j]
+        vs.append(0.5 * d * d)
+        ds.append(np.abs(d))
+    return np.concatenate(us), np.concatenate(vs), np.concatenate(ds)
+
+
+def brute_bins(u, v, d, edges):
+    idx = np.searchsorted(edges, u, side="right") - 1
+    idx[u == edges[-1]] = len(edges) - 2
+    keep = (u >= edges[0]) & (u <= edges[-1])
+    out = []
+    for b in range(len(edges) - 1):
+        m = keep & (idx == b)
+        n = m.sum()
+        out.append((n, u[m].mean() if n else math.nan, v[m].mean() if n else math.nan,
+                    (np.mean(np.sqrt(d[m])) ** 4 / (0.457 + 0.494 / n) / 2) if n else math.nan))
+    return out
+
+
+def close(a, b, rel=1e-12):
+    return abs(a - b) <= rel * max(abs(a), abs(b), 1e-300)
+
+
+@pytest.mark.parametrize("bins", [dict(lag_bins=12, max_lag=6.0), dict(lag_edges=[0.0, 0.5, 1.3, 2.0, 4.0, 7.5])])
+def test_variogram_bins_vs_numpy_enumeration(bins):
+    ids, t, r = irregular()
+    p = tw.Panel(ids, t, r)
+    vg = tw.variogram(p, r, min_pairs=1, **bins)
+    u, v, d = all_pairs(ids, t, r)
+    edges = np.array(vg.lower + [vg.upper[-1]])
+    if "lag_edges" in bins:
+        assert edges.tolist() == bins["lag_edges"]
+    else:
+        assert np.allclose(edges, np.linspace(0, 6.0, 13), rtol=0, atol=1e-15)
+    for b, (n, lag, classical, robust) in enumerate(brute_bins(u, v, d, edges)):
+        assert vg.pairs[b] == n
+        assert close(vg.lag[b], lag) and close(vg.classical[b], classical) and close(vg.robust[b], robust)
+    assert vg.pairs_in_bins + vg.pairs_outside == len(u)
+
+
+def test_equal_count_bins_hold_about_equal_counts():
+    ids, t, r = irregular()
+    p = tw.Panel(ids, t, r)
+    vg = tw.variogram(p, r, lag_kind="equal_count", lag_bins=8, min_pairs=1)
+    u, v, d = all_pairs(ids, t, r)
+    edges = np.array(vg.lower + [vg.upper[-1]])
+    # The counts are exactly those of the reported edges (numpy), and within one fine cell of
+    # equal: total / 8 each, give or take the pairs of a 1/4096 slice of the lag range.
+    for b, (n, lag, classical, _) in enumerate(brute_bins(u, v, d, edges)):
+        assert vg.pairs[b] == n and close(vg.classical[b], classical)
+    assert max(vg.pairs) - min(vg.pairs) < 0.05 * len(u)
+
+
+def test_process_variance_vs_all_between_subject_pairs():
+    ids, t, r = irregular(subjects=300)
+    p = tw.Panel(ids, t, r)
+    vg = tw.variogram(p, r)
+    # numpy brute force over every pair of rows from different subjects.
+    j, k = np.triu_indices(len(r), 1)
+    between = ids[j] != ids[k]
+    expected = np.mean(0.5 * (r[j][between] - r[k][between]) ** 2)
+    assert close(vg.process_variance, expected)
+    assert vg.between_pairs == between.sum()
+    assert close(vg.variance, np.var(r, ddof=1))
+
+
+def wide_table(ids, t, r, edges):
+    """Subjects x bins with the visit nearest each bin's midpoint (pandas), NaN where none."""
+    df = pd.DataFrame(dict(s=ids, t=t, r=r))
+    df["bin"] = pd.cut(df.t, edges, right=False, labels=False, include_lowest=True)
+    df.loc[df.t == edges[-1], "bin"] = len(edges) - 2
+    mid = (np.asarray(edges[:-1]) + np.asarray(edges[1:])) / 2
+    df["dist"] = np.abs(df.t - mid[df.bin.astype(int)])
+    best = df.sort_values(["s", "bin", "dist", "t"]).groupby(["s", "bin"]).head(1)
+    return best.pivot(index="s", columns="bin", values="r").reindex(columns=range(len(edges) - 1))
+
+
+def test_binned_correlation_vs_pandas_pairwise():
+    ids, t, r = irregular(subjects=600, seed=3)
+    p = tw.Panel(ids, t, r)
+    edges = [0, 1, 2, 3.5, 5, 6.5, 8]
+    c = tw.binned_correlation(p, r, edges=edges, min_count=5, level=0.9)
+    wide = wide_table(ids, t, r, edges)
+    expected = wide.corr(min_periods=5).to_numpy()
+    got = c.matrix()
+    assert np.array_equal(np.isnan(got), np.isnan(expected))
+    assert np.nanmax(np.abs(got - expected)) < 1e-12
+    counts = wide.notna().astype(int).T @ wide.notna().astype(int)
+    assert np.array_equal(c.matrix("counts"), counts.to_numpy())
+    # Fisher (1915) limits, closed form with the normal quantile from scipy.
+    n = counts.to_numpy()
+    z = stats.norm.ppf(0.95) / np.sqrt(np.where(n > 3, n - 3, np.nan))
+    off = ~np.eye(len(edges) - 1, dtype=bool) & (n > 3)
+    with np.errstate(divide="ignore"):  # atanh(1) on the diagonal, which is not compared
+        zr = np.arctanh(expected)
+    assert np.allclose(c.matrix("lower")[off], np.tanh(zr - z)[off], rtol=0, atol=1e-12)
+    assert np.allclose(c.matrix("upper")[off], np.tanh(zr + z)[off], rtol=0, atol=1e-12)
+    # Lag correlation: the count-weighted mean of the diagonals (numpy).
+    for lag, value in zip(c.lags.lag, c.lags.correlation):
+        cells = [(a, a + lag) for a in range(len(edges) - 1 - lag) if not np.isnan(expected[a, a + lag])]
+        w = np.array([n[a, b] for a, b in cells])
+        assert close(value, np.sum(w * np.array([expected[a, b] for a, b in cells])) / w.sum(), 1e-12)
+    assert c.visits_used + c.visits_outside + c.visits_unused == len(r)
+
+
+def test_binned_correlation_on_a_schedule_uses_the_nearest_visit():
+    # Subject 1 has two visits in the window of nominal time 1: the one at 1.1 is nearer.
+    ids = [1, 1, 1, 2, 2, 3, 3, 4, 4]
+    t = [0.0, 0.8, 1.1, 0.0, 1.0, 0.0, 1.0, 0.1, 0.9]
+    r = [1.0, 99.0, 2.0, 2.0, 3.0, 3.0, 1.0, 0.0, 0.5]
+    c = tw.binned_correlation(tw.Panel(ids, t, r), r, schedule=[0, 1], tolerance=0.3)
+    x, y = np.array([1.0, 2.0, 3.0, 0.0]), np.array([2.0, 3.0, 1.0, 0.5])
+    assert close(c.matrix()[0, 1], np.corrcoef(x, y)[0, 1])
+    assert (c.visits_used, c.visits_unused) == (8, 1)
+
+
+def cressie(theta, lag, g, n, model):
+    tau2, s2, phi = theta
+    rho = np.exp(-lag / phi) if model == "exponential" else np.exp(-(lag / phi) ** 2)
+    m = tau2 + s2 * (1 - rho)
+    return np.sum(n * (g / m - 1) ** 2)
+
+
+@pytest.mark.parametrize("model", ["exponential", "gaussian"])
+def test_fit_variogram_vs_scipy_minimiser(model):
+    df = tw.simulate(subjects=800, seed=21, sd_slope=0, age_effect=0, female_effect=0,
+                     diabetes_slope=0, acr_slope=0)
+    p = tw.Panel.from_frame(df, "patient", "years", "egfr")
+    r = df.egfr.to_numpy() - (58.0 - 1.2 * df.years.to_numpy())
+    vg = tw.variogram(p, r, max_lag=5.0, lag_bins=15)
+    fit = tw.fit_variogram(vg, model=model)
+    lag, g, n = vg.column("lag"), vg.column("classical"), vg.column("pairs")
+    ok = ~np.isnan(g)
+    # scipy's bounded quasi-Newton from our solution's neighbourhood and from a plain start:
+    # neither finds a lower criterion than ours by more than round-off.
+    for start in ([fit.error_variance * 1.2 + 0.1, fit.serial_variance * 0.8, fit.range * 1.3],
+                  [np.nanmin(g) / 2, np.nanmax(g) / 2, 1.0]):
+        best = optimize.minimize(cressie, start, args=(lag[ok], g[ok], n[ok], model),
+                                 method="L-BFGS-B", bounds=[(0, None), (1e-9, None), (1e-6, 50)])
+        assert fit.criterion <= best.fun * (1 + 1e-6) + 1e-9
+    assert close(fit.criterion, cressie([fit.error_variance, fit.serial_variance, fit.range],
+                                        lag[ok], g[ok], n[ok], model), 1e-10)
+    assert close(fit.intercept_variance,
+                 max(0.0, vg.process_variance - fit.error_variance - fit.serial_variance), 1e-12)
+
+
+def test_fit_warns_when_the_sill_exceeds_the_process_variance():
+    # A variogram whose bins rise above the process variance: nu^2 would be negative.
+    vg = dict(lag=[0.5, 1.5, 2.5, 3.5], pairs=[100, 100, 100, 100], classical=[1.0, 2.0, 2.6, 2.9],
+              robust=[None] * 4, max_lag=4.0, process_variance=2.0)
+    with pytest.warns(UserWarning, match="nu\\^2 is set to 0"):
+        fit = tw.fit_variogram(vg)
+    assert fit.intercept_variance == 0.0
+
+
+def test_smoothed_variogram_and_pair_sample():
+    ids, t, r = irregular(subjects=200)
+    p = tw.Panel(ids, t, r)
+    vg = tw.variogram(p, r, sample=500, seed=3, smoother=tw.Kernel(bandwidth=1.0))
+    assert len(vg.sample.lag) == 500 and vg.smoothed_pairs == 500
+    again = tw.variogram(p, r, sample=500, seed=3)
+    assert again.sample == vg.sample
+    u, v, _ = all_pairs(ids, t, r)
+    # Every sampled pair is a real pair (numpy enumeration): same (u, v) multiset membership.
+    real = set(zip(np.round(u, 12), np.round(v, 12)))
+    assert all((round(a, 12), round(b, 12)) in real for a, b in zip(vg.sample.lag, vg.sample.half_sq_diff))
+    everything = tw.variogram(p, r, sample="all")
+    assert len(everything.sample.lag) == everything.pairs_in_bins
+
+
+@pytest.mark.parametrize("call,kind,argument", [
+    (lambda p, r: tw.variogram(p, r[:-1]), tw.LengthMismatchError, "residuals"),
+    (lambda p, r: tw.variogram(p, np.where(np.arange(len(r)) == 4, np.nan, r)), tw.NonFiniteError, "residuals"),
+    (lambda p, r: tw.variogram(p, r, lag_kind="quantile"), tw.InvalidOptionError, "lag_kind"),
+    (lambda p, r: tw.variogram(p, r, sample="many"), tw.InvalidOptionError, "sample"),
+    (lambda p, r: tw.variogram(p, r, lag_edges=[0, 1], max_lag=2), tw.InvalidOptionError, "max_lag"),
+    (lambda p, r: tw.binned_correlation(p, r, bins=4, edges=[0, 1, 2]), tw.InvalidOptionError, "bins"),
+    (lambda p, r: tw.binned_correlation(p, r), tw.InvalidOptionError, "bins"),
+    (lambda p, r: tw.binned_correlation(p, r, bins=3, min_count=1), tw.InvalidOptionError, "min_count"),
+    (lambda p, r: tw.fit_variogram(tw.variogram(p, r), model="spherical"), tw.InvalidOptionError, "model"),
+])
+def test_bad_input(call, kind, argument):
+    ids, t, r = irregular(subjects=50)
+    with pytest.raises(kind) as e:
+        call(tw.Panel(ids, t, r), r)
+    assert argument in str(e.value)
