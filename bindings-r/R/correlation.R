@@ -68,7 +68,7 @@ fit_variogram <- function(vg, model = "exponential", estimate = "classical") {
   }
   if (is.character(model)) model <- enc2utf8(model)
   if (is.character(estimate)) estimate <- enc2utf8(estimate)
-  value <- tw_value(.Call(wrap__tw_fit_variogram, unclass(vg), model, estimate))
+  value <- tw_value(.Call(wrap__tw_fit_variogram, vg, model, estimate))
   for (w in value$warnings) warning(w, call. = FALSE)
   class(value) <- "trajweave_variogram_fit"
   value
