@@ -87,7 +87,9 @@ print.trajweave_variogram_fit <- function(x, ...) {
     "random-intercept variance (nu^2)" = x$intercept_variance,
     "process variance" = x$process_variance
   )
-  for (name in names(shown)) cat("  ", name, ": ", format(shown[[name]], digits = 6), "\n", sep = "")
+  for (name in names(shown)) {
+    cat("  ", name, ": ", format(shown[[name]], digits = 6), "\n", sep = "")
+  }
   for (w in x$warnings) cat("warning: ", w, "\n", sep = "")
   invisible(x)
 }

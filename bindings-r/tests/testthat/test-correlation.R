@@ -174,7 +174,9 @@ test_that("variogram bins of equal width, a pair sample and a smoothed variogram
   expect_identical(vg$bins$lower, 21 * (0:6) / 7)
   expect_identical(nrow(vg$sample), as.integer(vg$pairs_in_bins))
   # Every within-chick pair, recomputed with outer() in base R, in the sample.
-  v <- unlist(lapply(split(cw$r, cw$id), function(r) (outer(r, r, "-")^2 / 2)[upper.tri(diag(length(r)))]))
+  v <- unlist(lapply(split(cw$r, cw$id), function(r) {
+    (outer(r, r, "-")^2 / 2)[upper.tri(diag(length(r)))]
+  }))
   expect_equal(sort(vg$sample$half_sq_diff), sort(unname(v)), tolerance = 1e-12)
   expect_true(all(vg$sample$subject %in% cw$id))
   expect_s3_class(vg$smoothed, "trajweave_curve")
@@ -323,4 +325,34 @@ test_that("bad input gives classed conditions with the core's messages", {
     "invalid_option",
     "`model` = \"spherical\" is not allowed: \"exponential\" or \"gaussian\""
   )
+})
+
+test_that("text ids and dropped rows: residuals follow the caller's rows, the sample its ids", {
+  cw <- chick_residuals()
+  cw$name <- paste0("chick-", cw$id)
+  cw$y <- cw$weight
+  cw$y[c(3, 100)] <- NA # dropped rows; their residuals are not read
+  p <- panel_from_frame(cw, "name", "Time", "y", missing = "drop")
+  r <- cw$r
+  r[c(3, 100)] <- NaN
+  kept <- cw[-c(3, 100), ]
+  vg <- variogram(p, r, lag_bins = 10, min_pairs = 1, sample = "all")
+  expect_type(vg$sample$subject, "character")
+  expect_true(all(vg$sample$subject %in% kept$name))
+  # The process variance over the kept rows, by brute force in base R.
+  between <- outer(kept$id, kept$id, "!=") & upper.tri(diag(nrow(kept)))
+  expect_equal(vg$process_variance, mean((outer(kept$r, kept$r, "-")^2 / 2)[between]),
+    tolerance = 1e-12
+  )
+  # A variogram carrying text ids refits the same without its sample.
+  without <- vg
+  without$sample <- NULL
+  expect_identical(suppressWarnings(fit_variogram(vg)), suppressWarnings(fit_variogram(without)))
+  res <- binned_correlation(p, r, schedule = c(0, 10, 21), tolerance = 0.5)
+  wide <- sapply(c(0, 10, 21), function(day) {
+    on_day <- kept[kept$Time == day, ]
+    on_day$r[match(unique(kept$id), on_day$id)]
+  })
+  r_base <- stats::cor(wide, use = "pairwise.complete.obs") # stats::cor
+  expect_equal(unname(res$correlation), r_base, tolerance = TOL_CORRELATION)
 })
