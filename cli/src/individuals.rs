@@ -5,18 +5,18 @@
 use clap::Args;
 use trajweave_core::mean_curve::mean_curve;
 use trajweave_core::ranking::{pick_subjects, rank_subjects, Summary};
-use trajweave_core::residuals::{residuals, MeanModel};
+use trajweave_core::residuals::{residuals, MeanModel, Residuals};
 use trajweave_core::sample::{sample_subjects, Strategy};
 use trajweave_core::unusual::unusual;
+use trajweave_core::Panel;
 
 use crate::error::CliError;
 use crate::smooth::SmootherArgs;
 use crate::{json, write_out, PanelArgs};
 
+/// The mean model residuals are taken from (shared by the verbs that use residuals).
 #[derive(Args)]
-pub struct IndividualsArgs {
-    #[command(flatten)]
-    panel: PanelArgs,
+pub struct MeanArgs {
     /// Mean model: polynomial (in time, --poly-degree), smooth (the --method smoother over all
     /// rows) or group (one smooth per level of --by).
     #[arg(long, default_value = "polynomial")]
@@ -29,6 +29,43 @@ pub struct IndividualsArgs {
     by: Option<String>,
     #[command(flatten)]
     smoother: SmootherArgs,
+}
+
+impl MeanArgs {
+    /// The residuals of the mean model asked for.
+    pub fn residuals(&self, panel: &Panel) -> Result<Residuals, CliError> {
+        let model = match self.mean.as_str() {
+            "polynomial" => MeanModel::Polynomial {
+                degree: self.poly_degree,
+            },
+            "smooth" => {
+                MeanModel::Curve(mean_curve(panel, &self.smoother.smoother()?, None, None)?.curve)
+            }
+            "group" => MeanModel::ByGroup {
+                covariate: self
+                    .by
+                    .clone()
+                    .ok_or_else(|| option("--by", "not given", "--mean group needs --by COLUMN"))?,
+                smoother: self.smoother.smoother()?,
+            },
+            other => {
+                return Err(option(
+                    "--mean",
+                    &format!("{other:?}"),
+                    "polynomial, smooth or group",
+                ))
+            }
+        };
+        Ok(residuals(panel, &model)?)
+    }
+}
+
+#[derive(Args)]
+pub struct IndividualsArgs {
+    #[command(flatten)]
+    panel: PanelArgs,
+    #[command(flatten)]
+    mean: MeanArgs,
     /// Summary of each subject's residuals: median, mean, quantile (with --p), rms, max_abs or slope.
     #[arg(long, default_value = "median")]
     summary: String,
@@ -62,29 +99,7 @@ pub fn run_individuals(a: &IndividualsArgs) -> Result<(), CliError> {
     let summary = Summary::parse(&a.summary, a.p)?;
     let strategy = Strategy::parse(&a.strategy)?;
     let panel = a.panel.read()?;
-    let model = match a.mean.as_str() {
-        "polynomial" => MeanModel::Polynomial {
-            degree: a.poly_degree,
-        },
-        "smooth" => {
-            MeanModel::Curve(mean_curve(&panel, &a.smoother.smoother()?, None, None)?.curve)
-        }
-        "group" => MeanModel::ByGroup {
-            covariate: a
-                .by
-                .clone()
-                .ok_or_else(|| option("--by", "not given", "--mean group needs --by COLUMN"))?,
-            smoother: a.smoother.smoother()?,
-        },
-        other => {
-            return Err(option(
-                "--mean",
-                &format!("{other:?}"),
-                "polynomial, smooth or group",
-            ))
-        }
-    };
-    let r = residuals(&panel, &model)?;
+    let r = a.mean.residuals(&panel)?;
     let ranking = rank_subjects(&panel, &r.residuals, summary)?;
     let picks = pick_subjects(&panel, &r.residuals, &ranking, &a.quantiles)?;
     let k = a.sample.min(panel.n_subjects());

@@ -1,5 +1,6 @@
 //! The `trajweave` command: explore longitudinal data held in CSV files.
 
+mod correlation;
 mod covariates;
 mod error;
 mod individuals;
@@ -45,6 +46,10 @@ enum Command {
     Groups(covariates::GroupsArgs),
     /// Subjects x time bins of binned means, rows ordered by follow-up, for a heat map.
     Grid(covariates::GridArgs),
+    /// Residual correlation between time bins, with counts, Fisher intervals and lags.
+    Correlation(correlation::CorrelationArgs),
+    /// Empirical variogram of residuals, the process variance and a fitted model.
+    Variogram(correlation::VariogramArgs),
 }
 
 #[derive(Args)]
@@ -138,6 +143,8 @@ fn main() -> ExitCode {
         Command::Covariate(a) => covariates::run_covariate(&a),
         Command::Groups(a) => covariates::run_groups(&a),
         Command::Grid(a) => covariates::run_grid(&a),
+        Command::Correlation(a) => correlation::run_correlation(&a),
+        Command::Variogram(a) => correlation::run_variogram(&a),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,

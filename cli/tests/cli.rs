@@ -417,3 +417,51 @@ fn individuals_covariate_groups_grid() {
     let d: Value = serde_json::from_slice(&o.stdout).unwrap();
     assert_eq!(d["values"].as_array().unwrap().len(), 16, "{}", stderr(&o));
 }
+
+#[test]
+fn variogram_and_correlation() {
+    // Two subjects at times 0, 1, 2 and 0, 1; residuals from a degree-0 polynomial are y minus
+    // the grand mean, so pair differences are differences of y (closed form by hand).
+    let csv = "id,t,y\n1,0,1\n1,1,3\n1,2,2\n2,0,0\n2,1,2\n";
+    let path = temp_csv("vg.csv", csv);
+    let o = on_file(
+        "variogram",
+        &path,
+        &[
+            "--poly-degree",
+            "0",
+            "--lag-edges",
+            "0,1.5,2.5",
+            "--min-pairs",
+            "1",
+            "--fit",
+            "none",
+        ],
+    );
+    assert!(o.status.success(), "{}", stderr(&o));
+    let d: Value = serde_json::from_slice(&o.stdout).unwrap();
+    let vg = &d["variogram"];
+    assert_eq!(vg["pairs"], serde_json::json!([3, 1]));
+    // Lag 1 pairs: (1,3), (3,2), (0,2): v = 2, 0.5, 2; lag 2: (1,2): v = 0.5.
+    assert_eq!(vg["classical"], serde_json::json!([1.5, 0.5]));
+    assert!(d["fit"].is_null());
+    let o = on_file("variogram", &path, &["--lag-kind", "quantile"]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(
+        stderr(&o).starts_with("error [invalid_option]: `lag_kind`"),
+        "{}",
+        stderr(&o)
+    );
+    let o = on_file("correlation", &path, &["--bins", "2", "--edges", "0,1,2"]);
+    assert!(
+        stderr(&o).starts_with("error [invalid_option]: `bins`"),
+        "{}",
+        stderr(&o)
+    );
+    let o = on_file(
+        "correlation",
+        &path,
+        &["--schedule", "0,1", "--tolerance", "0.1"],
+    );
+    assert!(stderr(&o).contains("too_few"), "{}", stderr(&o));
+}

@@ -224,3 +224,41 @@ def test_individuals_three_fronts(tmp_path):
     same(from_r["values"], ranking.values.tolist(), rel=R_REL_TOL)
     assert from_r["sample"] == sample.subjects
     same(from_r["coefficients"], r.coefficients, rel=R_REL_TOL)
+
+
+def test_correlation_structure_three_fronts(tmp_path):
+    # Residuals from a degree-1 polynomial on the demo data; the binned correlation on a
+    # schedule, the variogram and its exponential fit: CLI = Python exactly, R within 1e-12.
+    base = ["--subject", "patient", "--time", "years", "--response", "egfr"]
+    grid = ["--schedule", "0,1,2,3,4,5,6", "--tolerance", "0.25"]
+    c_cli = json.loads(cli("correlation", DEMO, *base, *grid))["correlation"]
+    v_cli = json.loads(cli("variogram", DEMO, *base, "--max-lag", "6", "--lag-bins", "12"))
+    df = pd.read_csv(DEMO)
+    panel = tw.Panel.from_frame(df, "patient", "years", "egfr")
+    r = tw.residuals(panel, tw.Polynomial(1))
+    c_py = tw.binned_correlation(panel, r, schedule=range(7), tolerance=0.25)
+    vg = tw.variogram(panel, r, max_lag=6, lag_bins=12)
+    with pytest.warns(UserWarning):
+        fit = tw.fit_variogram(vg)
+    assert c_cli == c_py.to_dict()
+    assert v_cli["variogram"] == vg.to_dict()
+    assert v_cli["fit"] == fit.to_dict()
+    code = (f'df <- read.csv("{DEMO}")\n'
+            'p <- panel_from_frame(df, "patient", "years", "egfr")\n'
+            'r <- panel_residuals(p, residuals_polynomial(1))$residuals\n'
+            'c <- binned_correlation(p, r, schedule = 0:6, tolerance = 0.25)\n'
+            'v <- variogram(p, r, max_lag = 6, lag_bins = 12)\n'
+            'f <- suppressWarnings(fit_variogram(v))\n'
+            'cat(jsonlite::toJSON(list(correlation = as.vector(t(c$correlation)), '
+            'counts = as.vector(t(c$counts)), classical = v$bins$classical, pairs = v$bins$pairs, '
+            'process_variance = v$process_variance, range = f$range, '
+            'error_variance = f$error_variance, intercept_variance = f$intercept_variance), '
+            'digits = NA, na = "null", auto_unbox = TRUE))')
+    from_r = json.loads(rscript(code, tmp_path))
+    same(from_r["correlation"], c_py.correlation, rel=R_REL_TOL)
+    assert from_r["counts"] == c_py.counts
+    same(from_r["classical"], vg.classical, rel=R_REL_TOL)
+    assert from_r["pairs"] == vg.pairs
+    same(from_r["process_variance"], vg.process_variance, rel=R_REL_TOL)
+    for k in ["range", "error_variance", "intercept_variance"]:
+        same(from_r[k], fit.to_dict()[k], rel=1e-9)

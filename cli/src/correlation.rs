@@ -1,0 +1,124 @@
+//! `trajweave correlation` and `trajweave variogram`: the correlation structure of residuals
+//! from a mean model, as JSON.
+
+use clap::Args;
+use trajweave_core::correlation::{binned_correlation, CorrelationOptions};
+use trajweave_core::smoother::Smoother;
+use trajweave_core::variogram::fit::{fit_variogram, Estimate, VariogramModel};
+use trajweave_core::variogram::{variogram, VariogramOptions};
+use trajweave_core::TimeGrid;
+
+use crate::error::CliError;
+use crate::individuals::MeanArgs;
+use crate::{json, write_out, PanelArgs};
+
+#[derive(Args)]
+pub struct CorrelationArgs {
+    #[command(flatten)]
+    panel: PanelArgs,
+    #[command(flatten)]
+    mean: MeanArgs,
+    /// Number of equal-width time bins over the observed times.
+    #[arg(long)]
+    bins: Option<f64>,
+    /// Time-bin edges, comma-separated and increasing.
+    #[arg(long, value_delimiter = ',', allow_hyphen_values = true)]
+    edges: Option<Vec<f64>>,
+    /// Nominal visit times, comma-separated (needs --tolerance).
+    #[arg(long, value_delimiter = ',', allow_hyphen_values = true)]
+    schedule: Option<Vec<f64>>,
+    /// Half-width of the window around each nominal time.
+    #[arg(long, allow_hyphen_values = true)]
+    tolerance: Option<f64>,
+    /// Coverage of the Fisher intervals.
+    #[arg(long, allow_hyphen_values = true)]
+    level: Option<f64>,
+    /// Fewest subjects behind a shown correlation.
+    #[arg(long)]
+    min_count: Option<f64>,
+}
+
+pub fn run_correlation(a: &CorrelationArgs) -> Result<(), CliError> {
+    let options = CorrelationOptions::from_numbers(a.level, a.min_count)?;
+    let panel = a.panel.read()?;
+    let grid = TimeGrid::for_times(
+        panel.time(),
+        a.bins,
+        a.edges.clone(),
+        a.schedule.clone(),
+        a.tolerance,
+    )?;
+    let r = a.mean.residuals(&panel)?;
+    let c = binned_correlation(&panel, &r.residuals, &grid, &options)?;
+    let out = serde_json::json!({ "model": r.model, "correlation": c });
+    write_out(std::path::Path::new("-"), json(&out)?.as_bytes())
+}
+
+#[derive(Args)]
+pub struct VariogramArgs {
+    #[command(flatten)]
+    panel: PanelArgs,
+    #[command(flatten)]
+    mean: MeanArgs,
+    /// Number of lag bins (default 20).
+    #[arg(long)]
+    lag_bins: Option<f64>,
+    /// Lag bins: equal_width (default) or equal_count.
+    #[arg(long)]
+    lag_kind: Option<String>,
+    /// Lag-bin edges, comma-separated (instead of --lag-bins and --max-lag).
+    #[arg(long, value_delimiter = ',')]
+    lag_edges: Option<Vec<f64>>,
+    /// Largest lag kept (default: the longest follow-up).
+    #[arg(long, allow_hyphen_values = true)]
+    max_lag: Option<f64>,
+    /// Fewest pairs for a bin's estimate.
+    #[arg(long)]
+    min_pairs: Option<f64>,
+    /// Raw pairs to include: a number (seeded sample) or "all".
+    #[arg(long)]
+    sample: Option<String>,
+    /// Seed of the pair sample.
+    #[arg(long)]
+    seed: Option<f64>,
+    /// Add a smoothed variogram: a smoother family (lowess, kernel, spline, super) with its
+    /// default settings, fitted to the pair sample.
+    #[arg(long)]
+    smoothed: Option<String>,
+    /// Model fitted to the variogram: exponential (default), gaussian, or none.
+    #[arg(long, default_value = "exponential")]
+    fit: String,
+    /// Bin estimate fitted: classical (default) or robust.
+    #[arg(long, default_value = "classical")]
+    estimate: String,
+}
+
+pub fn run_variogram(a: &VariogramArgs) -> Result<(), CliError> {
+    let model = match a.fit.as_str() {
+        "none" => None,
+        other => Some(VariogramModel::parse(other)?),
+    };
+    let estimate = Estimate::parse(&a.estimate)?;
+    let smoother = a.smoothed.as_deref().map(Smoother::new).transpose()?;
+    let options = VariogramOptions::from_front(
+        a.lag_kind.as_deref(),
+        a.lag_bins,
+        a.lag_edges.clone(),
+        a.max_lag,
+        a.min_pairs,
+        a.sample.as_deref(),
+        a.seed,
+        smoother,
+    )?;
+    let panel = a.panel.read()?;
+    let r = a.mean.residuals(&panel)?;
+    let vg = variogram(&panel, &r.residuals, &options)?;
+    let fit = model.map(|m| fit_variogram(&vg, m, estimate)).transpose()?;
+    if let Some(f) = &fit {
+        for w in &f.warnings {
+            eprintln!("warning: {w}");
+        }
+    }
+    let out = serde_json::json!({ "model": r.model, "variogram": vg, "fit": fit });
+    write_out(std::path::Path::new("-"), json(&out)?.as_bytes())
+}
