@@ -5,7 +5,7 @@
 use pyo3::prelude::*;
 use trajweave_core::correlation::{binned_correlation, CorrelationOptions};
 use trajweave_core::variogram::fit::{fit_variogram, Estimate, VariogramModel};
-use trajweave_core::variogram::{variogram, Variogram, VariogramOptions};
+use trajweave_core::variogram::{process_variance, variogram, Variogram, VariogramOptions};
 use trajweave_core::TimeGrid;
 
 use crate::errors::IntoPy;
@@ -89,4 +89,14 @@ pub fn variogram_fit(
     let estimate = Estimate::parse(estimate).py_err()?;
     let f = fit_variogram(&vg, model, estimate).py_err()?;
     serde_json::to_string(&f).map_err(json_err)
+}
+
+#[pyfunction]
+pub fn panel_process_variance(
+    py: Python<'_>,
+    panel: &NativePanel,
+    residuals: RawValues<'_>,
+) -> PyResult<f64> {
+    let r = residuals.panel_order(panel, "residuals")?;
+    py.detach(|| process_variance(&panel.inner, &r)).py_err()
 }

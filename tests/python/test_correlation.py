@@ -102,6 +102,7 @@ def test_process_variance_vs_all_between_subject_pairs():
     assert close(vg.process_variance, expected)
     assert vg.between_pairs == between.sum()
     assert close(vg.variance, np.var(r, ddof=1))
+    assert close(tw.process_variance(p, r), expected)
 
 
 def wide_table(ids, t, r, edges):

@@ -7,7 +7,14 @@
 200
 """
 
-from .correlation import BinnedCorrelation, Variogram, binned_correlation, fit_variogram, variogram
+from .correlation import (
+    BinnedCorrelation,
+    Variogram,
+    binned_correlation,
+    fit_variogram,
+    process_variance,
+    variogram,
+)
 from .covariates import (
     TrajectoryGrid,
     conditional_trends,
@@ -58,6 +65,7 @@ __all__ = [
     "binned_correlation",
     "variogram",
     "fit_variogram",
+    "process_variance",
     "BinnedCorrelation",
     "Variogram",
     "Panel",

@@ -95,6 +95,11 @@ def variogram(panel, residuals, lag_bins=None, lag_kind=None, lag_edges=None, ma
         options=[] if smoother is None else smoother._pairs())))
 
 
+def process_variance(panel, residuals):
+    """The mean of (r_j - r_k)^2 / 2 over all pairs of rows of different subjects, in O(n)."""
+    return _trajweave.panel_process_variance(panel._native, _values(panel, residuals, "residuals"))
+
+
 def fit_variogram(vg, model="exponential", estimate="classical"):
     """gamma(u) = tau^2 + sigma^2 (1 - rho(u)) fitted to ``vg`` by Cressie's weighted least
     squares; nu^2 = process variance - (tau^2 + sigma^2), kept >= 0. Each warning of the fit

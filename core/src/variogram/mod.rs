@@ -525,6 +525,37 @@ pub fn variogram_sums(
     })
 }
 
+/// The process variance alone: the mean of (r_j - r_k)^2 / 2 over all pairs of rows of
+/// different subjects, in O(n) (see [`ProcessSums`]).
+///
+/// # Examples
+/// ```
+/// use trajweave_core::variogram::process_variance;
+/// use trajweave_core::{Missing, Panel, SubjectIds};
+/// # fn main() -> trajweave_core::Result<()> {
+/// let ids = SubjectIds::Int(vec![Some(1), Some(1), Some(2)]);
+/// let p = Panel::new(ids, &[0.0, 1.0, 0.0], &[0.0, 2.0, 4.0], vec![], Missing::Error)?;
+/// // Between-subject pairs: (0, 4) and (2, 4), v = 8 and 2.
+/// assert_eq!(process_variance(&p, p.response())?, 5.0);
+/// # Ok(()) }
+/// ```
+///
+/// # Errors
+/// [`Error::LengthMismatch`] / [`Error::NonFinite`] for `residuals`; [`Error::TooFew`] for a
+/// panel with one subject.
+pub fn process_variance(panel: &Panel, residuals: &[f64]) -> Result<f64> {
+    check_residuals(panel, residuals)?;
+    if panel.n_subjects() < 2 {
+        return Err(Error::TooFew {
+            what: "subjects".into(),
+            estimate: "the process variance".into(),
+            needed: 2,
+            found: panel.n_subjects(),
+        });
+    }
+    Ok(sums::process_sums(panel, residuals).process_variance())
+}
+
 /// The empirical variogram of `residuals` (one per panel row, panel order).
 ///
 /// # Examples

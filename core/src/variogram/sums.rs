@@ -251,6 +251,28 @@ pub(crate) fn accumulate(
     (lags, process)
 }
 
+/// The process sums alone, in parallel over fixed blocks of subjects.
+pub(crate) fn process_sums(panel: &Panel, residuals: &[f64]) -> ProcessSums {
+    let s = panel.n_subjects();
+    let block = block_size(s);
+    let starts: Vec<usize> = (0..s).step_by(block).collect();
+    let parts: Vec<ProcessSums> = starts
+        .par_iter()
+        .map(|&first| {
+            let mut p = ProcessSums::new();
+            for i in first..(first + block).min(s) {
+                p.add_subject(&residuals[panel.subject_rows(i)]);
+            }
+            p
+        })
+        .collect();
+    let mut total = ProcessSums::new();
+    for p in &parts {
+        total.merge(p);
+    }
+    total
+}
+
 #[allow(clippy::too_many_arguments)]
 fn add_pairs(
     panel: &Panel,
