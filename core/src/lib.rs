@@ -28,6 +28,7 @@ pub mod mean_curve;
 pub mod panel;
 pub mod quantile;
 pub mod ranking;
+pub mod report;
 pub mod residuals;
 pub mod rng;
 pub mod sample;
