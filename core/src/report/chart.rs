@@ -3,7 +3,7 @@
 //! title; small multiples of plots sharing the y axis.
 //!
 //! Point clouds switch to a binned density (a 2-D histogram drawn as rectangles coloured by
-//! the sequential ramp) above a threshold number of points ([`cloud`]), so a figure of a
+//! a grey ramp) above a threshold number of points ([`cloud`]), so a figure of a
 //! million rows is a few thousand rectangles, not a million circles.
 
 use serde::Serialize;
@@ -172,7 +172,7 @@ pub fn cloud(name: &str, x: &[f64], y: &[f64], threshold: usize) -> Layer {
         }
     } else {
         Layer::Density {
-            name: format!("{name} (binned density: darker = fewer)"),
+            name: format!("{name} (binned density: darker = more)"),
             density: Density::of(x, y, DENSITY_BINS.0, DENSITY_BINS.1),
         }
     }
@@ -465,8 +465,8 @@ pub(crate) fn rect(s: &mut Svg, x: f64, y: f64, w: f64, h: f64, fill: Option<&st
     s.leaf("rect", &attrs);
 }
 
-/// Cells coloured by log(1 + count) / log(1 + max count) on the sequential ramp, reversed so
-/// dense cells are dark; empty cells are not drawn.
+/// Cells coloured by log(1 + count) / log(1 + max count) on the grey ramp (dense cells dark);
+/// empty cells are not drawn.
 fn draw_density(s: &mut Svg, d: &Density, xs: &Linear, ys: &Linear) {
     let nx = d.x_edges.len().saturating_sub(1);
     let max = d.counts.iter().copied().max().unwrap_or(0);
@@ -487,7 +487,7 @@ fn draw_density(s: &mut Svg, d: &Density, xs: &Linear, ys: &Linear) {
         ) else {
             continue;
         };
-        let colour = palette::ramp(Ramp::Sequential, 1.0 - f64::from(c).ln_1p() / denom);
+        let colour = palette::ramp(Ramp::Grey, f64::from(c).ln_1p() / denom);
         let (x0, x1, y0, y1) = (xs.map(xa), xs.map(xb), ys.map(yb), ys.map(ya));
         // A quarter pixel of overlap hides hairline seams between cells.
         rect(s, x0, y0, x1 - x0 + 0.25, y1 - y0 + 0.25, Some(&colour));
@@ -503,7 +503,7 @@ fn legend(s: &mut Svg, layers: &[Layer], x: f64, y: f64) {
         let swatch = match layer {
             Layer::Line { colour, .. } | Layer::Band { colour, .. } => colour.clone(),
             Layer::Points { colour, .. } | Layer::Bars { colour, .. } => colour.clone(),
-            Layer::Density { .. } => palette::ramp(Ramp::Sequential, 0.3),
+            Layer::Density { .. } => palette::ramp(Ramp::Grey, 0.5),
         };
         let opacity = if matches!(layer, Layer::Band { .. }) {
             "0.35"
@@ -568,7 +568,7 @@ pub fn small_multiples(title_text: &str, panels: &[Plot], y_title: &str, panel_w
     } else {
         0.0
     };
-    let (left, gap, panel_h) = (64.0, 12.0, 260.0);
+    let (left, gap, panel_h) = (64.0, 26.0, 260.0);
     let n = panels.len() as f64;
     let width = left + n * panel_w + (n - 1.0).max(0.0) * gap + 16.0 + legend_w;
     let height = 36.0 + 20.0 + panel_h + 48.0;

@@ -132,6 +132,7 @@ impl HeatMap {
         let dark_cell = match self.ramp {
             Ramp::Sequential => u < 0.55,
             Ramp::Diverging => !(0.2..=0.8).contains(&u),
+            Ramp::Grey => u > 0.5,
         };
         let fill = if dark_cell { "#ffffff" } else { "#111111" };
         let small = num(SMALL_FONT);

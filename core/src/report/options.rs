@@ -64,7 +64,8 @@ pub struct ReportOptions {
     /// Title of the page (default "Trajectory report").
     pub title: String,
     /// The smoother family of the mean curve, its band, the residuals, covariate and group
-    /// curves (default "lowess").
+    /// curves (default "kernel": a local-linear Gaussian kernel, cheap enough for 200
+    /// bootstrap refits of a million rows).
     pub smoother: String,
     /// Families drawn side by side in the mean-trend figure (default all four).
     pub smoothers: Vec<String>,
@@ -109,7 +110,7 @@ impl Default for ReportOptions {
         let all = ["lowess", "kernel", "spline", "super"];
         ReportOptions {
             title: "Trajectory report".into(),
-            smoother: "lowess".into(),
+            smoother: "kernel".into(),
             smoothers: all.iter().map(|s| s.to_string()).collect(),
             families: all.iter().filter_map(|f| Smoother::new(f).ok()).collect(),
             bootstrap_reps: 200,

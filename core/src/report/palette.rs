@@ -9,6 +9,8 @@
 //! - Diverging ramp (residuals, correlations in [-1, 1]): R's `hcl.colors(11, "Blue-Red 3")`,
 //!   blue below the centre, red above, light grey at it.
 //!
+//! - Grey ramp (the density of many points behind curves): light to dark grey.
+//!
 //! Between anchors colours are interpolated linearly in sRGB.
 
 /// Series colours (Okabe & Ito 2008) in the order series take them.
@@ -36,6 +38,10 @@ pub fn series(i: usize) -> &'static str {
     SERIES[i % SERIES.len()]
 }
 
+/// Anchors of the grey ramp of binned densities, light to dark (luminance monotone), so
+/// curves drawn over a density stay readable.
+pub const GREYS: [&str; 2] = ["#EBEBEB", "#5A5A5A"];
+
 /// Which ramp a value-coloured figure uses.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Ramp {
@@ -43,6 +49,8 @@ pub enum Ramp {
     Sequential,
     /// Around a centre: residuals, correlations.
     Diverging,
+    /// Light to dark grey: the background density of many points.
+    Grey,
 }
 
 fn rgb(hex: &str) -> [f64; 3] {
@@ -69,6 +77,7 @@ pub fn ramp(kind: Ramp, u: f64) -> String {
     let anchors: &[&str] = match kind {
         Ramp::Sequential => &SEQUENTIAL,
         Ramp::Diverging => &DIVERGING,
+        Ramp::Grey => &GREYS,
     };
     let pos = u.clamp(0.0, 1.0) * (anchors.len() - 1) as f64;
     let j = (pos.floor() as usize).min(anchors.len() - 2);
@@ -94,5 +103,7 @@ mod tests {
         // Half way between #F6F6F6 and #F7D3D3: (246+247)/2 = 246.5 -> 247, (246+211)/2 = 228.5 -> 229.
         assert_eq!(ramp(Ramp::Diverging, 0.55), "#f7e5e5");
         assert_eq!(ramp(Ramp::Sequential, f64::NAN), "#eeeeee");
+        // (235 + 90) / 2 = 162.5 -> 163 = 0xa3.
+        assert_eq!(ramp(Ramp::Grey, 0.5), "#a3a3a3");
     }
 }

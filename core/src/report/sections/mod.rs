@@ -51,7 +51,7 @@ impl Context<'_> {
 
 fn titled(name: &str, unit: Option<&str>) -> String {
     match unit {
-        Some(u) if !u.is_empty() => format!("{name} ({u})"),
+        Some(u) if !u.is_empty() && u != name => format!("{name} ({u})"),
         _ => name.to_string(),
     }
 }
@@ -98,7 +98,12 @@ pub(crate) fn fmt(x: f64) -> String {
     } else {
         (2.0 - a.log10().floor()).min(8.0) as usize
     };
-    super::scale::format_fixed(x, decimals)
+    let s = super::scale::format_fixed(x, decimals);
+    if s.contains('.') {
+        s.trim_end_matches('0').trim_end_matches('.').to_string()
+    } else {
+        s
+    }
 }
 
 /// A serde value of a result (results derive Serialize; a failure would be a bug, so it
@@ -115,5 +120,7 @@ mod tests {
         assert_eq!(super::fmt(-1.2345), "-1.23");
         assert_eq!(super::fmt(0.012345), "0.0123");
         assert_eq!(super::fmt(0.0), "0");
+        assert_eq!(super::fmt(0.05), "0.05");
+        assert_eq!(super::fmt(95.0), "95");
     }
 }
