@@ -141,6 +141,13 @@ pub enum Layer {
 }
 
 /// A line layer in series colour `i`.
+///
+/// # Examples
+/// ```
+/// use trajweave_core::report::chart::{line, Layer};
+/// let l = line("mean", &[0.0, 1.0], &[2.0, 3.0], 0);
+/// assert!(matches!(l, Layer::Line { ref colour, .. } if colour == "#0072B2"));
+/// ```
 pub fn line(name: &str, x: &[f64], y: &[f64], i: usize) -> Layer {
     Layer::Line {
         name: name.into(),

@@ -89,12 +89,25 @@ pub fn table(header: &[&str], rows: &[Vec<String>]) -> String {
 }
 
 /// A paragraph of plain text (escaped).
+///
+/// # Examples
+/// ```
+/// use trajweave_core::report::html::paragraph;
+/// assert_eq!(paragraph("a < b"), "<p>a &lt; b</p>");
+/// ```
 pub fn paragraph(text: &str) -> String {
     format!("<p>{}</p>", escape(text))
 }
 
 /// The whole page. `meta` lines (source file, data columns) and `summary` are plain text and
 /// are escaped.
+///
+/// # Examples
+/// ```
+/// use trajweave_core::report::html::page;
+/// let html = page("My <report>", &["Data: a.csv".into()], "Nothing yet.", &[]);
+/// assert!(html.starts_with("<!DOCTYPE html>") && html.contains("<h1>My &lt;report&gt;</h1>"));
+/// ```
 pub fn page(title: &str, meta: &[String], summary: &str, sections: &[Section]) -> String {
     let mut s = String::with_capacity(1 << 16);
     let t = escape(title);

@@ -78,6 +78,17 @@ pub const AUTO_BINS: usize = 10;
 /// The time grid of the heat map and dropout cohorts: the given edges, or Heckbert's nice
 /// ticks spanning the time range with about [`AUTO_BINS`] bins.
 ///
+/// # Examples
+/// ```
+/// use trajweave_core::report::{report_grid, ReportOptions};
+/// use trajweave_core::{Missing, Panel, SubjectIds};
+/// # fn main() -> trajweave_core::Result<()> {
+/// let p = Panel::new(SubjectIds::Int(vec![Some(1), Some(1)]), &[0.0, 9.3], &[1.0, 2.0], vec![], Missing::Error)?;
+/// // Heckbert's ticks for [0, 9.3] aiming at 11: step 1, so bins [0, 1), ..., [9, 10].
+/// assert_eq!(report_grid(&p, &ReportOptions::default())?.n_bins(), 10);
+/// # Ok(()) }
+/// ```
+///
 /// # Errors
 /// Those of [`TimeGrid::edges`].
 pub fn report_grid(panel: &Panel, options: &ReportOptions) -> Result<TimeGrid> {

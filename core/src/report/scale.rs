@@ -119,6 +119,13 @@ impl Ticks {
 }
 
 /// `x` with `decimals` decimals, `-0` written `0`.
+///
+/// # Examples
+/// ```
+/// use trajweave_core::report::scale::format_fixed;
+/// assert_eq!(format_fixed(-0.001, 2), "0.00");
+/// assert_eq!(format_fixed(2.25, 1), "2.2");
+/// ```
 pub fn format_fixed(x: f64, decimals: usize) -> String {
     let s = format!("{x:.decimals$}");
     if s.trim_start_matches('-')
@@ -165,6 +172,12 @@ impl Linear {
 }
 
 /// The smallest and largest finite value, `None` when there is none.
+///
+/// # Examples
+/// ```
+/// use trajweave_core::report::scale::extent;
+/// assert_eq!(extent(&[3.0, f64::NAN, -1.0]), Some((-1.0, 3.0)));
+/// ```
 pub fn extent<'a>(values: impl IntoIterator<Item = &'a f64>) -> Option<(f64, f64)> {
     values
         .into_iter()

@@ -151,6 +151,12 @@ impl Svg {
 
 /// The `d` attribute of a polyline through the finite points; a non-finite point breaks the
 /// line (a new `M`), so a curve with gaps is drawn as separate pieces.
+///
+/// # Examples
+/// ```
+/// use trajweave_core::report::svg::path_data;
+/// assert_eq!(path_data([(0.0, 1.0), (2.5, 3.0)].into_iter()), "M0 1L2.5 3");
+/// ```
 pub fn path_data(points: impl Iterator<Item = (f64, f64)>) -> String {
     let mut d = String::new();
     let mut pen_down = false;

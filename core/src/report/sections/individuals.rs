@@ -43,6 +43,21 @@ pub struct PooledGrid {
 /// min(S, max_rows) rows, row g holds display rows floor(g S / R) .. floor((g + 1) S / R) (equal
 /// counts, order kept); its cell is the mean over all visits of its subjects in that bin, that
 /// is sum(mean x count) / sum(count), and its count their sum.
+///
+/// # Examples
+/// ```
+/// use trajweave_core::report::pool_rows;
+/// use trajweave_core::trajectory_grid::TrajectoryGrid;
+/// use trajweave_core::SubjectId;
+/// let g = TrajectoryGrid {
+///     bins: vec!["b".into()],
+///     subjects: vec![SubjectId::Int(1), SubjectId::Int(2)],
+///     order_values: vec![1.0, 2.0],
+///     values: vec![1.0, 4.0],
+///     counts: vec![1, 2],
+/// };
+/// assert_eq!(pool_rows(&g, 1).values, vec![3.0]); // (1 x 1 + 4 x 2) / 3
+/// ```
 pub fn pool_rows(g: &TrajectoryGrid, max_rows: usize) -> PooledGrid {
     let (s, k) = (g.subjects.len(), g.bins.len());
     let r = s.min(max_rows.max(1));
