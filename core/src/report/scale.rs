@@ -88,6 +88,15 @@ impl Ticks {
         // A tolerance of 1e-9 steps, so 1 / 0.2 = 4.999... does not add a tick.
         let first = (lo / step + 1e-9).floor();
         let last = (hi / step - 1e-9).ceil();
+        // A range too wide for doubles (e.g. -1e308 to 1e308): the ends alone.
+        let count = last - first;
+        if !(hi - lo).is_finite() || count.is_nan() || count > 1000.0 {
+            return Ticks {
+                values: vec![lo, hi],
+                step: hi - lo,
+                decimals: 0,
+            };
+        }
         let decimals = (-step.log10().floor()).max(0.0) as usize;
         let unit = 10f64.powi(decimals.min(15) as i32);
         // Multiples of the step rounded to the label's decimals, so 3 x 0.2 is 0.6 exactly.
@@ -238,6 +247,7 @@ mod tests {
         assert_eq!(Ticks::loose(5.0, 5.0, 5).span(), (4.4, 5.6));
         assert_eq!(Ticks::loose(0.0, 0.0, 5).span(), (-1.0, 1.0));
         assert_eq!(Ticks::loose(f64::NAN, 1.0, 5).span(), (0.0, 1.0));
+        assert_eq!(Ticks::loose(-1e308, 1e308, 5).values, vec![-1e308, 1e308]);
         assert_eq!(format_fixed(-0.0001, 2), "0.00");
         assert_eq!(extent(&[f64::NAN, 2.0, -1.0]), Some((-1.0, 2.0)));
         assert_eq!(extent(&[f64::NAN]), None);

@@ -81,7 +81,9 @@ pub fn pool_rows(g: &TrajectoryGrid, max_rows: usize) -> PooledGrid {
         let (a, b) = (row * s / r, (row + 1) * s / r);
         for i in a..b {
             for c in 0..k {
-                let n = u64::from(g.counts[i * k + c]);
+                // `get`: a grid built by hand may be shorter than subjects x bins.
+                let n = u64::from(g.counts.get(i * k + c).copied().unwrap_or(0));
+                let v = g.values.get(i * k + c).copied().unwrap_or(f64::NAN);
                 if n > 0 {
                     let cell = row * k + c;
                     let prev = if out.counts[cell] == 0 {
@@ -89,7 +91,7 @@ pub fn pool_rows(g: &TrajectoryGrid, max_rows: usize) -> PooledGrid {
                     } else {
                         out.values[cell]
                     };
-                    out.values[cell] = prev + g.values[i * k + c] * n as f64;
+                    out.values[cell] = prev + v * n as f64;
                     out.counts[cell] += n;
                 }
             }
@@ -101,7 +103,9 @@ pub fn pool_rows(g: &TrajectoryGrid, max_rows: usize) -> PooledGrid {
             }
         }
         out.rows.push(if r == s {
-            g.subjects[a].to_string()
+            g.subjects
+                .get(a)
+                .map_or_else(String::new, ToString::to_string)
         } else {
             format!("{}-{}", a + 1, b)
         });
