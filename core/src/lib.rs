@@ -31,6 +31,7 @@ pub mod optimize;
 pub mod panel;
 pub mod quantile;
 pub mod ranking;
+pub mod report;
 pub mod residuals;
 pub mod rng;
 pub mod sample;
