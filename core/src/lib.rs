@@ -31,6 +31,7 @@ pub mod ranking;
 pub mod residuals;
 pub mod rng;
 pub mod sample;
+pub mod screen;
 pub mod simulate;
 pub mod smoother;
 pub mod spline;
