@@ -353,6 +353,16 @@ pub fn structure_loglik(
     let data = checked_data(panel, resid)?;
     let n = data.n_obs();
     let k_bins = grid.map_or(0, TimeGrid::n_bins);
+    let no_grid = || {
+        Error::option(
+            "grid",
+            "not given",
+            &format!("{} needs a time grid", structure.name()),
+        )
+    };
+    if structure.needs_grid() && grid.is_none() {
+        return Err(no_grid());
+    }
     structure.check_parameters(parameters, k_bins)?;
     let p = parameters;
     let at_shape = |c: f64, shape: Shape| match shape_terms(data, shape) {
@@ -399,13 +409,7 @@ pub fn structure_loglik(
             )
         }
         Structure::Toeplitz | Structure::Unstructured => {
-            let Some(g) = grid else {
-                return Err(Error::option(
-                    "grid",
-                    "not given",
-                    &format!("{} needs a time grid", structure.name()),
-                ));
-            };
+            let g = grid.ok_or_else(no_grid)?;
             let pats = binned::patterns(data, g, panel.ids()).map_err(|reason| {
                 Error::option("grid", format!("a grid of {k_bins} bins"), &reason)
             })?;
