@@ -27,7 +27,7 @@ pub mod kernel;
 pub mod lowess;
 pub mod mean_curve;
 pub mod normal;
-pub mod optimize;
+mod optimize;
 pub mod panel;
 pub mod quantile;
 pub mod ranking;

@@ -3,8 +3,8 @@
 use super::binned::{toeplitz, Patterns};
 use super::irregular::{profiled, shape_terms, Data, ExchangeableStats, Serial, Shape};
 use super::linalg::is_positive_definite;
-use super::optimize::{bfgs, grid_brent, nelder_mead};
 use super::structures::upper_triangle;
+use crate::optimize::{bfgs, grid_brent, nelder_mead};
 
 /// Grid points of the 1-D searches.
 const GRID_POINTS: usize = 30;

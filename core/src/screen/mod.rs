@@ -54,7 +54,6 @@ mod binned;
 mod fit;
 mod irregular;
 mod linalg;
-mod optimize;
 mod structures;
 
 use rayon::prelude::*;

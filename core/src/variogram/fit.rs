@@ -5,12 +5,14 @@
 //!
 //! The criterion is Cressie's (1985, Math. Geology 17:563-586) weighted least squares,
 //! sum over bins N_h (gammahat_h / gamma(u_h) - 1)^2, with u_h the mean lag of the bin's pairs
-//! and only bins that have an estimate. It is minimised by Nelder-Mead
-//! ([`crate::optimize::nelder_mead`]) over (sqrt tau^2, sqrt sigma^2, ln phi), so the variances
-//! stay >= 0 and the range > 0, from three starts: phi = max lag x (0.1, 0.3, 1), each with
-//! (tau^2, sigma^2) from a least-squares line of gammahat on 1 - rho(u) (weights N_h /
-//! gammahat_h^2, clamped at 0); the best of the three is kept. Stops: relative spread 1e-12
-//! or 5000 iterations.
+//! and only bins that have an estimate. It is minimised by Nelder-Mead (the crate's
+//! `optimize` module, shared with the covariance screening) over (sqrt tau^2, sqrt sigma^2,
+//! ln phi), the square roots divided by the larger start so one step of 0.25 suits every
+//! coordinate; the variances stay >= 0 and the range > 0. Three starts: phi = max lag x
+//! (0.1, 0.3, 1), each with (tau^2, sigma^2) from a least-squares line of gammahat on 1 - rho(u) (weights N_h /
+//! gammahat_h^2, clamped at 0); the best of the three is kept (the first on ties). Stops:
+//! a spread of the simplex values <= 1e-12 (1 + |best|) and a simplex within 1e-9 of its best
+//! vertex, or 5000 iterations.
 //!
 //! The range is capped at [`RANGE_CAP`] x the maximum lag (with a warning when it gets
 //! there), since lags beyond those observed cannot tell larger ranges apart.
@@ -195,25 +197,34 @@ pub fn fit_variogram(
         .map(|share| {
             let phi = vg.max_lag * share;
             let (tau2, s2) = start_components(model, &bins, phi);
-            let start = [tau2.sqrt(), s2.sqrt(), phi.ln()];
-            let scale = start[0].max(start[1]).max(1e-8);
-            nelder_mead(
-                |x| criterion(model, &bins, x[0] * x[0], x[1] * x[1], cap(x[2])),
+            // Variances enter as square roots scaled by the larger, so one simplex step
+            // suits every coordinate.
+            let scale = tau2.sqrt().max(s2.sqrt()).max(1e-8);
+            let start = [tau2.sqrt() / scale, s2.sqrt() / scale, phi.ln()];
+            let m = nelder_mead(
+                |x| {
+                    let (a, b) = (x[0] * scale, x[1] * scale);
+                    criterion(model, &bins, a * a, b * b, cap(x[2]))
+                },
                 &start,
-                &[0.2 * scale, 0.2 * scale, 0.5],
+                0.25,
                 1e-12,
+                1e-9,
                 5000,
-            )
+            );
+            (m, scale)
         })
         .collect();
     // The first start wins ties, so the choice is reproducible.
     let mut kept = &fits[0];
     for m in &fits[1..] {
-        if m.value < kept.value {
+        if m.0.f < kept.0.f {
             kept = m;
         }
     }
-    let (value, x, iterations, converged) = (kept.value, &kept.x, kept.iterations, kept.converged);
+    let (m, scale) = kept;
+    let (value, iterations, converged) = (m.f, m.iterations, m.converged);
+    let x = [m.x[0] * scale, m.x[1] * scale, m.x[2]];
     let (tau2, s2, phi) = (x[0] * x[0], x[1] * x[1], cap(x[2]));
     let mut warnings = Vec::new();
     if phi >= longest {
