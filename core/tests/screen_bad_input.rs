@@ -77,7 +77,7 @@ fn too_few_and_options() {
             ..Default::default()
         },
         ScreenOptions {
-            tolerance: 0.0,
+            convergence: 0.0,
             ..Default::default()
         },
     ] {

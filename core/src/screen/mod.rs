@@ -79,18 +79,62 @@ pub struct ScreenOptions {
     /// Cap on each optimiser's iterations (>= 1).
     pub max_iterations: usize,
     /// Relative convergence tolerance on the log-likelihood, in (0, 0.1].
-    pub tolerance: f64,
+    pub convergence: f64,
+}
+
+impl ScreenOptions {
+    /// Options from a front's values (absent ones take their defaults): candidate names,
+    /// a grid, `max_iterations` and `convergence`.
+    ///
+    /// # Examples
+    /// ```
+    /// use trajweave_core::screen::ScreenOptions;
+    /// # fn main() -> trajweave_core::Result<()> {
+    /// let o = ScreenOptions::from_front(Some(&["exponential".to_string()]), None, Some(200.0), None)?;
+    /// assert_eq!((o.candidates.len(), o.max_iterations), (1, 200));
+    /// assert!(ScreenOptions::from_front(Some(&["ar1".to_string()]), None, None, None).is_err());
+    /// # Ok(()) }
+    /// ```
+    ///
+    /// # Errors
+    /// [`Error::InvalidOption`] for an unknown name, a `max_iterations` that is not a whole
+    /// number from 1 to 10^6, or a `convergence` outside (0, 0.1].
+    pub fn from_front(
+        candidates: Option<&[String]>,
+        grid: Option<TimeGrid>,
+        max_iterations: Option<f64>,
+        convergence: Option<f64>,
+    ) -> Result<ScreenOptions> {
+        let d = ScreenOptions::default();
+        let o = ScreenOptions {
+            candidates: match candidates {
+                Some(names) => names
+                    .iter()
+                    .map(|n| Structure::parse(n))
+                    .collect::<Result<_>>()?,
+                None => d.candidates,
+            },
+            grid,
+            max_iterations: match max_iterations {
+                Some(m) => crate::error::whole_number("max_iterations", m, 1, 1_000_000)? as usize,
+                None => d.max_iterations,
+            },
+            convergence: convergence.unwrap_or(d.convergence),
+        };
+        check_options(&o)?;
+        Ok(o)
+    }
 }
 
 impl Default for ScreenOptions {
     /// Every structure, no grid (so toeplitz and unstructured are skipped), 1000 iterations,
-    /// tolerance 1e-10.
+    /// convergence 1e-10.
     fn default() -> Self {
         ScreenOptions {
             candidates: Structure::ALL.to_vec(),
             grid: None,
             max_iterations: 1000,
-            tolerance: 1e-10,
+            convergence: 1e-10,
         }
     }
 }
@@ -477,15 +521,15 @@ fn check_options(o: &ScreenOptions) -> Result<Control> {
     if o.max_iterations == 0 {
         return Err(Error::option("max_iterations", 0, "a whole number >= 1"));
     }
-    if !(o.tolerance > 0.0 && o.tolerance <= 0.1) {
+    if !(o.convergence > 0.0 && o.convergence <= 0.1) {
         return Err(Error::option(
-            "tolerance",
-            o.tolerance,
+            "convergence",
+            o.convergence,
             "a number in (0, 0.1]",
         ));
     }
     Ok(Control {
         max_iterations: o.max_iterations,
-        tolerance: o.tolerance,
+        tolerance: o.convergence,
     })
 }
