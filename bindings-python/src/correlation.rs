@@ -1,9 +1,11 @@
-//! Correlation structure: binned correlation, variogram and its model fit. Results cross as
+//! Correlation structure: binned correlation, variogram and its model fit, covariance
+//! screening. Results cross as
 //! JSON (NaN as null); residuals come in the caller's row order or as the native panel-order
 //! copy from `residuals()`.
 
 use pyo3::prelude::*;
 use trajweave_core::correlation::{binned_correlation, CorrelationOptions};
+use trajweave_core::screen::{screen_structures, structure_loglik, ScreenOptions, Structure};
 use trajweave_core::variogram::fit::{fit_variogram, Estimate, VariogramModel};
 use trajweave_core::variogram::{process_variance, variogram, Variogram, VariogramOptions};
 use trajweave_core::TimeGrid;
@@ -99,4 +101,57 @@ pub fn panel_process_variance(
 ) -> PyResult<f64> {
     let r = residuals.panel_order(panel, "residuals")?;
     py.detach(|| process_variance(&panel.inner, &r)).py_err()
+}
+
+/// The optional grid of the screening: edges, or a schedule with a tolerance, or none.
+fn screen_grid(
+    edges: Option<Vec<f64>>,
+    schedule: Option<Vec<f64>>,
+    tolerance: Option<f64>,
+) -> PyResult<Option<TimeGrid>> {
+    TimeGrid::from_options(edges, schedule, tolerance).py_err()
+}
+
+#[allow(clippy::too_many_arguments)] // mirrors the front's keyword arguments
+#[pyfunction]
+#[pyo3(signature = (panel, residuals, candidates=None, edges=None, schedule=None, tolerance=None, max_iterations=None, convergence=None))]
+pub fn panel_screen_structures(
+    py: Python<'_>,
+    panel: &NativePanel,
+    residuals: RawValues<'_>,
+    candidates: Option<Vec<String>>,
+    edges: Option<Vec<f64>>,
+    schedule: Option<Vec<f64>>,
+    tolerance: Option<f64>,
+    max_iterations: Option<f64>,
+    convergence: Option<f64>,
+) -> PyResult<String> {
+    let r = residuals.panel_order(panel, "residuals")?;
+    let grid = screen_grid(edges, schedule, tolerance)?;
+    let o = ScreenOptions::from_front(candidates.as_deref(), grid, max_iterations, convergence)
+        .py_err()?;
+    let s = py
+        .detach(|| screen_structures(&panel.inner, &r, &o))
+        .py_err()?;
+    serde_json::to_string(&s).map_err(json_err)
+}
+
+#[allow(clippy::too_many_arguments)] // mirrors the front's keyword arguments
+#[pyfunction]
+#[pyo3(signature = (panel, residuals, structure, parameters, edges=None, schedule=None, tolerance=None))]
+pub fn panel_structure_loglik(
+    py: Python<'_>,
+    panel: &NativePanel,
+    residuals: RawValues<'_>,
+    structure: &str,
+    parameters: Vec<f64>,
+    edges: Option<Vec<f64>>,
+    schedule: Option<Vec<f64>>,
+    tolerance: Option<f64>,
+) -> PyResult<f64> {
+    let r = residuals.panel_order(panel, "residuals")?;
+    let grid = screen_grid(edges, schedule, tolerance)?;
+    let s = Structure::parse(structure).py_err()?;
+    py.detach(|| structure_loglik(&panel.inner, &r, s, &parameters, grid.as_ref()))
+        .py_err()
 }

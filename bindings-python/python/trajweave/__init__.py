@@ -13,6 +13,8 @@ from .correlation import (
     binned_correlation,
     fit_variogram,
     process_variance,
+    screen_structures,
+    structure_loglik,
     variogram,
 )
 from .covariates import (
@@ -68,6 +70,8 @@ __all__ = [
     "variogram",
     "fit_variogram",
     "process_variance",
+    "screen_structures",
+    "structure_loglik",
     "BinnedCorrelation",
     "Variogram",
     "Panel",

@@ -1,6 +1,7 @@
 """Correlation structure of residuals: the binned correlation matrix with counts and Fisher
-intervals, the correlation by bin lag, the empirical variogram with the process variance, and
-a variogram model fitted by weighted least squares (variance components).
+intervals, the correlation by bin lag, the empirical variogram with the process variance, a
+variogram model fitted by weighted least squares (variance components), and candidate
+covariance structures screened by likelihood (AIC, BIC).
 
 Values the core cannot estimate (a cell with too few subjects, a thin lag bin) are ``None``
 in the records, as ``null`` in the CLI's JSON; ``matrix()`` and ``column()`` give numpy
@@ -16,6 +17,9 @@ arrays with NaN instead.
 >>> fit = tw.fit_variogram(vg)
 >>> fit.range > 0
 True
+>>> s = tw.screen_structures(p, r, candidates=["independence", "exchangeable"])
+>>> s.fits[0]["structure"]
+'exchangeable'
 """
 
 import json
@@ -112,3 +116,33 @@ def fit_variogram(vg, model="exponential", estimate="classical"):
     for w in fit.warnings:
         warnings.warn(w, UserWarning, stacklevel=2)
     return fit
+
+
+def _grid_args(edges, schedule, tolerance):
+    return dict(edges=None if edges is None else [float(e) for e in edges],
+                schedule=None if schedule is None else [float(s) for s in schedule],
+                tolerance=None if tolerance is None else float(tolerance))
+
+
+def screen_structures(panel, residuals, candidates=None, edges=None, schedule=None, tolerance=None,
+                      max_iterations=1000, convergence=1e-10):
+    """Candidate within-subject covariance structures fitted to the residuals by maximum
+    likelihood (Gaussian, mean zero: the mean model is taken as fixed), ranked by AIC.
+
+    ``candidates``: names among "independence", "exchangeable", "exponential", "gaussian",
+    "intercept_exponential_error", "toeplitz", "unstructured" (default all); the last two need
+    a grid (``edges``, or a ``schedule`` with a ``tolerance``) of at most 12 bins.
+    """
+    return Record(json.loads(_trajweave.panel_screen_structures(
+        panel._native, _values(panel, residuals, "residuals"),
+        candidates=None if candidates is None else [str(c) for c in candidates],
+        max_iterations=float(max_iterations), convergence=float(convergence),
+        **_grid_args(edges, schedule, tolerance))))
+
+
+def structure_loglik(panel, residuals, structure, parameters, edges=None, schedule=None, tolerance=None):
+    """The Gaussian log-likelihood of the residuals under ``structure`` at ``parameters`` (in
+    the order of the screening's ``parameter_names``)."""
+    return _trajweave.panel_structure_loglik(
+        panel._native, _values(panel, residuals, "residuals"), str(structure),
+        [float(x) for x in parameters], **_grid_args(edges, schedule, tolerance))
