@@ -10,6 +10,7 @@ mod errors;
 mod individuals;
 mod mean_curve;
 mod panel;
+mod report;
 mod simulate;
 mod smoother;
 mod tune;
@@ -35,6 +36,7 @@ fn _trajweave(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(correlation::panel_variogram, m)?)?;
     m.add_function(wrap_pyfunction!(correlation::variogram_fit, m)?)?;
     m.add_function(wrap_pyfunction!(correlation::panel_process_variance, m)?)?;
+    m.add_function(wrap_pyfunction!(report::panel_report, m)?)?;
     m.add_class::<individuals::NativeRanking>()?;
     m.add_class::<individuals::NativeValues>()?;
     m.add_function(wrap_pyfunction!(individuals::panel_residuals, m)?)?;

@@ -29,6 +29,9 @@ panel_from_frame <- function(data, subject, time, response, covariates = charact
     }
     data[[name]]
   }
+  subject_name <- subject
+  time_name <- time
+  response_name <- response
   subject <- pick("subject", subject)
   time <- pick("time", time)
   response <- pick("response", response)
@@ -39,7 +42,10 @@ panel_from_frame <- function(data, subject, time, response, covariates = charact
   if (length(unknown) > 0L) {
     tw_stop_option("covariates", unknown[[1L]], no_such_column(columns))
   }
-  panel(subject, time, response, covariates = as.list(data)[covariates], missing = missing)
+  p <- panel(subject, time, response, covariates = as.list(data)[covariates], missing = missing)
+  # Column names for labels (the report's axes).
+  p[["columns"]] <- c(subject_name, time_name, response_name)
+  p
 }
 
 # The panel's subject ids in sorted order: the order of per-subject inputs such as

@@ -4,6 +4,7 @@ mod correlation;
 mod covariates;
 mod error;
 mod individuals;
+mod report;
 mod smooth;
 mod table;
 
@@ -50,6 +51,9 @@ enum Command {
     Correlation(correlation::CorrelationArgs),
     /// Empirical variogram of residuals, the process variance and a fitted model.
     Variogram(correlation::VariogramArgs),
+    /// The whole exploration as one HTML page with figures, plus a JSON of every number
+    /// (without a FILE: the bundled demo data).
+    Report(report::ReportArgs),
 }
 
 #[derive(Args)]
@@ -145,6 +149,7 @@ fn main() -> ExitCode {
         Command::Grid(a) => covariates::run_grid(&a),
         Command::Correlation(a) => correlation::run_correlation(&a),
         Command::Variogram(a) => correlation::run_variogram(&a),
+        Command::Report(a) => report::run_report(&a),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,

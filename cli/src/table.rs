@@ -18,10 +18,21 @@ pub struct Columns<'a> {
 /// subject column whose every filled cell is a whole number holds integer ids, else text ids.
 pub fn read_panel(path: &Path, cols: &Columns, missing: Missing) -> Result<Panel, CliError> {
     let file = path.display().to_string();
+    let handle = std::fs::File::open(path).map_err(|e| CliError::io(&file, e.to_string()))?;
+    read_panel_from(handle, &file, cols, missing)
+}
+
+/// As [`read_panel`], from any reader; `file` names the source in messages.
+pub fn read_panel_from(
+    source: impl std::io::Read,
+    file: &str,
+    cols: &Columns,
+    missing: Missing,
+) -> Result<Panel, CliError> {
+    let file = file.to_string();
     let mut reader = csv::ReaderBuilder::new()
         .trim(csv::Trim::All)
-        .from_path(path)
-        .map_err(|e| CliError::io(&file, e.to_string()))?;
+        .from_reader(source);
     let headers = reader
         .headers()
         .map_err(|e| CliError::csv(&file, &e))?

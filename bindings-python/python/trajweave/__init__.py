@@ -47,6 +47,7 @@ from .individuals import (
     unusual,
 )
 from .panel import Panel
+from .report import report
 from .simulate import simulate
 from .smoothers import (
     Curve,
@@ -62,6 +63,7 @@ from .smoothers import (
 from .trend import Bootstrap, MeanCurve, Tuning, mean_curve, tune_smoother
 
 __all__ = [
+    "report",
     "binned_correlation",
     "variogram",
     "fit_variogram",

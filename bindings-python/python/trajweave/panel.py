@@ -83,6 +83,8 @@ class Panel:
         self._native = _trajweave.NativePanel(
             _ids(subject), _floats("time", time), _floats("response", response), names, values, missing
         )
+        # Column names for labels (the report's axes); from_frame sets the frame's.
+        self.columns = ("subject", "time", "response")
 
     @classmethod
     def from_frame(cls, df, subject, time, response, covariates=(), missing="error"):
@@ -107,13 +109,15 @@ class Panel:
 
         if isinstance(covariates, str):
             covariates = [covariates]
-        return cls(
+        panel = cls(
             column("subject", subject),
             column("time", time),
             column("response", response),
             {c: column("covariates", c) for c in covariates},
             missing=missing,
         )
+        panel.columns = (str(subject), str(time), str(response))
+        return panel
 
     @property
     def n_subjects(self):

@@ -72,6 +72,33 @@ pub struct Report {
     pub json: serde_json::Value,
 }
 
+impl Report {
+    /// The numbers as indented JSON text with every object's keys sorted, and a final newline:
+    /// the same bytes from every front (a front whose JSON library keeps insertion order, as
+    /// the R package's does, would otherwise order keys differently).
+    pub fn json_text(&self) -> String {
+        fn sorted(v: &serde_json::Value) -> serde_json::Value {
+            match v {
+                serde_json::Value::Object(m) => {
+                    let mut keys: Vec<&String> = m.keys().collect();
+                    keys.sort();
+                    let mut out = serde_json::Map::new();
+                    for k in keys {
+                        out.insert(k.clone(), sorted(&m[k]));
+                    }
+                    serde_json::Value::Object(out)
+                }
+                serde_json::Value::Array(a) => {
+                    serde_json::Value::Array(a.iter().map(sorted).collect())
+                }
+                other => other.clone(),
+            }
+        }
+        // Serialising a Value cannot fail (its keys are strings).
+        serde_json::to_string_pretty(&sorted(&self.json)).unwrap_or_default() + "\n"
+    }
+}
+
 /// Bins aimed at when the grid edges are chosen automatically.
 pub const AUTO_BINS: usize = 10;
 

@@ -22,6 +22,7 @@ mod individuals;
 mod json;
 mod mean_curve;
 mod panel;
+mod report;
 mod simulate;
 mod smoother;
 mod tune;
@@ -40,4 +41,5 @@ extendr_module! {
     use covariates;
     use correlation;
     use variogram;
+    use report;
 }
