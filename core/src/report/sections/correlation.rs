@@ -224,3 +224,22 @@ pub(crate) fn build(
         numbers,
     )
 }
+
+#[cfg(test)]
+mod tests {
+    use crate::correlation::{binned_correlation, CorrelationOptions};
+    use crate::{Missing, Panel, SubjectIds, TimeGrid};
+
+    #[test]
+    fn empty_pairs_by_hand() {
+        // Three subjects seen in bins 0 and 1 only: the pair (0, 1) has a correlation, the
+        // pairs (0, 2) and (1, 2) share no subject, so 2 of the 3 pairs are empty.
+        let ids = SubjectIds::Int(vec![Some(1), Some(1), Some(2), Some(2), Some(3), Some(3)]);
+        let t = [0.5, 1.5, 0.5, 1.5, 0.5, 1.5];
+        let r = [1.0, 2.0, -1.0, -1.5, 0.0, 0.5];
+        let p = Panel::new(ids, &t, &r, vec![], Missing::Error).unwrap();
+        let grid = TimeGrid::edges(vec![0.0, 1.0, 2.0, 3.0]).unwrap();
+        let c = binned_correlation(&p, &r, &grid, &CorrelationOptions::default()).unwrap();
+        assert_eq!(super::empty_pairs(&c), 2);
+    }
+}

@@ -320,3 +320,35 @@ pub(crate) fn build(
         fit,
     ))
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::variogram::fit::VariogramModel;
+
+    #[test]
+    fn shares_and_fitted_values_by_hand() {
+        let vg = Variogram::for_fit(
+            vec![1.0, 2.0, 3.0],
+            vec![40, 40, 40],
+            vec![2.0, 3.0, 3.5],
+            vec![2.0, 3.0, 3.5],
+            3.0,
+            6.0,
+        )
+        .unwrap();
+        let mut f = fit_variogram(&vg, VariogramModel::Exponential, Estimate::Classical).unwrap();
+        // Components set by hand: 1 + 2 + 3 = 6, shares 1/6, 2/6, 3/6.
+        (
+            f.intercept_variance,
+            f.serial_variance,
+            f.error_variance,
+            f.range,
+        ) = (1.0, 2.0, 3.0, 2.0);
+        let s = Shares::of(&f);
+        assert_eq!((s.total, s.intercept, s.error), (6.0, 1.0 / 6.0, 0.5));
+        // 3 + 2 (1 - exp(-1 / 2)) at lag 1, by the closed form.
+        let want = 3.0 + 2.0 * (1.0 - (-0.5f64).exp());
+        assert!((fitted_at(&vg, &f)[0] - want).abs() < 1e-15);
+    }
+}
