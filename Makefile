@@ -21,7 +21,8 @@ export R_LIBS := $(RLIB)
 	demo-data demo-data-check fixtures-check clean
 
 demo: cli
-	$(CLI) describe $(DEMO_CSV) $(DEMO_COLUMNS) --edges 0,1,2,3,4,5,6,7,8
+	mkdir -p out
+	$(CLI) report --out out/report.html
 
 cli:
 	cargo build --release -p trajweave-cli

@@ -32,18 +32,6 @@ report <- function(panel, path, ..., time_unit = NULL, response_unit = NULL, sou
   }
   write_bytes(path, value$html)
   write_bytes(json_path, value$json)
-  invisible(jsonlite_free_numbers(value$json))
-}
-
-# The report's numbers as an R list, parsed without a JSON package: the JSON text is returned
-# as it is, with class "trajweave_report_json"; jsonlite::fromJSON() reads it when installed.
-jsonlite_free_numbers <- function(json) {
-  structure(list(json = json), class = "trajweave_report")
-}
-
-print.trajweave_report <- function(x, ...) {
-  cat("<trajweave report: ", format(nchar(x$json, type = "bytes")), " bytes of numbers>\n",
-    sep = ""
-  )
-  invisible(x)
+  # The paths written; read the numbers with e.g. jsonlite::fromJSON(json_path).
+  invisible(c(html = path, json = json_path))
 }

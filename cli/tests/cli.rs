@@ -465,3 +465,70 @@ fn variogram_and_correlation() {
     );
     assert!(stderr(&o).contains("too_few"), "{}", stderr(&o));
 }
+
+#[test]
+fn report_from_a_file_with_settings() {
+    let mut csv = String::from("id,t,<script>y</script>\n");
+    for s in 0..30 {
+        for k in 0..5 {
+            csv += &format!("{s},{k},{}\n", 50 + (s * 7 + k * 3) % 11);
+        }
+    }
+    let path = temp_csv("report.csv", &csv);
+    let dir = path.parent().unwrap().to_path_buf();
+    let settings = dir.join("settings.toml");
+    std::fs::write(
+        &settings,
+        "bootstrap_reps = 20\nsmoothers = [\"kernel\", \"spline\"]\ntitle = \"Clinic <b>\"\n",
+    )
+    .unwrap();
+    let out = dir.join("report.html");
+    let o = trajweave(&[
+        "report",
+        path.to_str().unwrap(),
+        "--subject",
+        "id",
+        "--time",
+        "t",
+        "--response",
+        "<script>y</script>",
+        "--settings",
+        settings.to_str().unwrap(),
+        "--set",
+        "sample_size=4",
+        "--out",
+        out.to_str().unwrap(),
+        "--quiet",
+    ]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let html = std::fs::read_to_string(&out).unwrap();
+    assert!(!html.contains("<script>y") && html.contains("&lt;script&gt;y"));
+    assert!(html.contains("Clinic &lt;b&gt;"));
+    let numbers: Value =
+        serde_json::from_str(&std::fs::read_to_string(dir.join("report.json")).unwrap()).unwrap();
+    assert_eq!(numbers["sections"]["overview"]["subjects"], 30);
+    // A FILE needs its columns named; an unknown option is refused by name.
+    let o = trajweave(&[
+        "report",
+        path.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    assert!(
+        stderr(&o).starts_with("error [invalid_option]: `--subject`"),
+        "{}",
+        stderr(&o)
+    );
+    let o = trajweave(&[
+        "report",
+        "--set",
+        "no_such=1",
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    assert!(
+        stderr(&o).starts_with("error [invalid_option]: `option` = \"no_such\""),
+        "{}",
+        stderr(&o)
+    );
+}

@@ -35,6 +35,7 @@ pub mod report;
 pub mod residuals;
 pub mod rng;
 pub mod sample;
+pub mod screen;
 pub mod simulate;
 pub mod smoother;
 pub mod spline;

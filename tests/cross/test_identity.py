@@ -262,3 +262,48 @@ def test_correlation_structure_three_fronts(tmp_path):
     same(from_r["process_variance"], vg.process_variance, rel=R_REL_TOL)
     for k in ["range", "error_variance", "intercept_variance"]:
         same(from_r[k], fit.to_dict()[k], rel=1e-9)
+
+
+DEMO_SOURCE = "the bundled demo data (simulated; no real patient)"
+
+
+def test_report_same_file_from_three_fronts(tmp_path):
+    # `trajweave report` with no FILE reports the bundled demo data; Python and R given the
+    # same data, names, units and source write byte-identical HTML and JSON.
+    cli("report", "--out", tmp_path / "cli.html", "--quiet", "--set", "bootstrap_reps=50")
+    df = pd.read_csv(DEMO)
+    p = tw.Panel.from_frame(df, "patient", "years", "egfr", DEMO_COVARIATES)
+    tw.report(p, tmp_path / "py.html", time_unit="years", response_unit="mL/min/1.73 m2",
+              source=DEMO_SOURCE, bootstrap_reps=50)
+    rscript(f'df <- read.csv("{DEMO}")\n'
+            'p <- panel_from_frame(df, "patient", "years", "egfr", '
+            'c("age", "female", "diabetes", "acr"))\n'
+            f'report(p, "{tmp_path / "r.html"}", bootstrap_reps = 50, time_unit = "years", '
+            f'response_unit = "mL/min/1.73 m2", source = "{DEMO_SOURCE}")\n', tmp_path)
+    for ext in ("html", "json"):
+        a = (tmp_path / f"cli.{ext}").read_bytes()
+        assert a == (tmp_path / f"py.{ext}").read_bytes(), ext
+        assert a == (tmp_path / f"r.{ext}").read_bytes(), ext
+
+
+def test_report_chickweight_three_fronts(tmp_path):
+    # ChickWeight (base R datasets) written by R, reported by the CLI, Python and R alike.
+    csv = tmp_path / "chickweight.csv"
+    rscript(f'd <- as.data.frame(datasets::ChickWeight); d$Chick <- as.integer(as.character(d$Chick))\n'
+            f'd$Diet <- as.integer(d$Diet)\nwrite.csv(d, "{csv}", row.names = FALSE)\n', tmp_path)
+    cli("report", csv, "--subject", "Chick", "--time", "Time", "--response", "weight",
+        "--covariate", "Diet", "--time-unit", "days", "--response-unit", "g",
+        "--set", "bootstrap_reps=30", "--out", tmp_path / "cli.html", "--quiet")
+    df = pd.read_csv(csv)
+    p = tw.Panel.from_frame(df, "Chick", "Time", "weight", ["Diet"])
+    tw.report(p, tmp_path / "py.html", time_unit="days", response_unit="g",
+              source="chickweight.csv", bootstrap_reps=30)
+    rscript(f'df <- read.csv("{csv}")\n'
+            'p <- panel_from_frame(df, "Chick", "Time", "weight", "Diet")\n'
+            f'report(p, "{tmp_path / "r.html"}", bootstrap_reps = 30, time_unit = "days", '
+            'response_unit = "g", source = "chickweight.csv")\n', tmp_path)
+    html = (tmp_path / "cli.html").read_bytes()
+    assert html == (tmp_path / "py.html").read_bytes() == (tmp_path / "r.html").read_bytes()
+    numbers = json.loads((tmp_path / "cli.json").read_text())
+    assert numbers["sections"]["overview"]["subjects"] == 50
+    assert numbers["sections"]["overview"]["observations"] == 578
