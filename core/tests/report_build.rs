@@ -14,6 +14,7 @@ use trajweave_core::report::{
 };
 use trajweave_core::residuals::{residuals, MeanModel};
 use trajweave_core::sample::{sample_subjects, Strategy};
+use trajweave_core::screen::{screen_structures, ScreenOptions, Screening, Structure};
 use trajweave_core::smoother::Smoother;
 use trajweave_core::unusual::unusual;
 use trajweave_core::variogram::fit::{fit_variogram, Estimate, VariogramModel};
@@ -552,4 +553,122 @@ fn unestimable_correlation_is_a_note_not_an_error() {
         .as_str()
         .unwrap()
         .contains("measurement error"));
+}
+
+/// Closed forms (Akaike 1974; Schwarz 1978; the Gaussian likelihood of independent residuals
+/// at the ML variance s2 = mean r^2, l = -N/2 (ln(2 pi s2) + 1)) checked against a screening.
+fn check_criteria(sc: &Screening, r: &[f64]) {
+    let n = r.len() as f64;
+    for f in &sc.fits {
+        let p = f.n_parameters as f64;
+        assert!((f.aic - (-2.0 * f.loglik + 2.0 * p)).abs() < 1e-9 * f.aic.abs());
+        assert!((f.bic - (-2.0 * f.loglik + p * n.ln())).abs() < 1e-9 * f.bic.abs());
+    }
+    let ind = sc
+        .fits
+        .iter()
+        .find(|f| f.structure == "independence")
+        .unwrap();
+    let s2 = r.iter().map(|x| x * x).sum::<f64>() / n;
+    let l = -n / 2.0 * ((2.0 * std::f64::consts::PI * s2).ln() + 1.0);
+    assert!(
+        (ind.loglik - l).abs() < 1e-9 * l.abs(),
+        "{} vs {l}",
+        ind.loglik
+    );
+}
+
+#[test]
+fn screening_holds_the_estimators_numbers_on_the_subsample() {
+    let p = panel();
+    let mut o = options();
+    o.set("bootstrap_reps", &ReportValue::Number(0.0)).unwrap();
+    let res = main_residuals(&p, &o);
+    let r = build_report(&p, &columns(), &o, &mut |_| {}).unwrap();
+    let s = &r.json["sections"]["screening"];
+    // 300 subjects, fewer than screen_subjects: all used. The default grid holds several
+    // visits of a subject in a bin, so toeplitz and unstructured are left out.
+    assert_eq!(s["subsample"]["subsampled"], false);
+    let so = ScreenOptions {
+        candidates: Structure::ALL
+            .iter()
+            .copied()
+            .filter(|c| !c.needs_grid())
+            .collect(),
+        grid: None,
+        ..ScreenOptions::default()
+    };
+    let sc = screen_structures(&p, &res, &so).unwrap();
+    assert_eq!(s["screening"], v(&sc));
+    assert!(s["grid_structures"].is_string());
+    check_criteria(&sc, &res);
+    let summary = r.json["summary"].as_str().unwrap();
+    assert!(summary.contains("Covariance screening:") && summary.contains("fits best"));
+    let html_table = r.html.split("<section id=\"screening\">").nth(1).unwrap();
+    assert!(html_table.contains("<th>delta AIC</th>"));
+
+    // A subsample of 100 subjects, seed 7: the same subjects as the random sample, by hand.
+    o.set("screen_subjects", &ReportValue::Number(100.0))
+        .unwrap();
+    o.set("screen_seed", &ReportValue::Number(7.0)).unwrap();
+    let r = build_report(&p, &columns(), &o, &mut |_| {}).unwrap();
+    let s = &r.json["sections"]["screening"];
+    let pick = sample_subjects(&p, None, 100, 7, Strategy::Random).unwrap();
+    let (mut ids, mut t, mut y, mut rr) = (Vec::new(), Vec::new(), Vec::new(), Vec::new());
+    for &i in &pick.subject_index {
+        for row in p.subject_rows(i) {
+            ids.push(Some(i as i64));
+            t.push(p.time()[row]);
+            y.push(p.response()[row]);
+            rr.push(res[row]);
+        }
+    }
+    let q = Panel::new(SubjectIds::Int(ids), &t, &y, vec![], Missing::Error).unwrap();
+    let sc = screen_structures(&q, &rr, &so).unwrap();
+    assert_eq!(s["screening"], v(&sc));
+    assert_eq!(s["subsample"]["subjects"], 100);
+    check_criteria(&sc, &rr);
+    assert!(r
+        .html
+        .contains("seeded random subsample of 100 of the 300 subjects"));
+}
+
+#[test]
+fn a_scheduled_grid_admits_toeplitz_and_unstructured() {
+    // 80 subjects seen once in each of 4 yearly windows (times j + 0.3 u, u from a seeded
+    // linear congruential generator, Knuth's MMIX constants), a subject effect and noise.
+    let mut state: u64 = 12345;
+    let mut unif = || {
+        state = state
+            .wrapping_mul(6364136223846793005)
+            .wrapping_add(1442695040888963407);
+        (state >> 11) as f64 / (1u64 << 53) as f64
+    };
+    let (mut ids, mut t, mut y) = (Vec::new(), Vec::new(), Vec::new());
+    for i in 0..80 {
+        let b = 4.0 * (unif() - 0.5);
+        for j in 0..4 {
+            ids.push(Some(i));
+            let tj = j as f64 + 0.3 * unif();
+            t.push(tj);
+            y.push(50.0 - tj + b + (unif() - 0.5));
+        }
+    }
+    let p = Panel::new(SubjectIds::Int(ids), &t, &y, vec![], Missing::Error).unwrap();
+    let mut o = options();
+    o.set("bootstrap_reps", &ReportValue::Number(0.0)).unwrap();
+    o.set("grid_edges", &ReportValue::Text("0,1,2,3,4".into()))
+        .unwrap();
+    let r = build_report(&p, &ReportColumns::default(), &o, &mut |_| {}).unwrap();
+    let s = &r.json["sections"]["screening"];
+    assert_eq!(s["grid_structures"], Value::Null);
+    let res = main_residuals(&p, &o);
+    let so = ScreenOptions {
+        grid: Some(report_grid(&p, &o).unwrap()),
+        ..ScreenOptions::default()
+    };
+    let sc = screen_structures(&p, &res, &so).unwrap();
+    assert_eq!(s["screening"], v(&sc));
+    assert_eq!(sc.fits.len(), 7);
+    check_criteria(&sc, &res);
 }

@@ -68,7 +68,7 @@ pub struct Report {
     /// The HTML document.
     pub html: String,
     /// Every number shown, by section id (`overview`, `trend`, `individuals`, `correlation`,
-    /// `variogram`, `covariates`, `groups`), with the options and columns used and the summary text.
+    /// `variogram`, `screening`, `covariates`, `groups`), with the options and columns used and the summary text.
     pub json: serde_json::Value,
 }
 
@@ -179,7 +179,15 @@ pub fn build_report(
     // The variogram first: its fit is drawn beside the lag correlation.
     let (variogram, fit) = sections::variogram::build(&ctx, &resid, progress)?;
     let correlation = sections::correlation::build(&ctx, &resid, fit.as_ref(), progress);
-    let mut all = vec![overview, trend, individuals, correlation, variogram];
+    let (screening, suggestion) = sections::screening::build(&ctx, &resid, progress)?;
+    let mut all = vec![
+        overview,
+        trend,
+        individuals,
+        correlation,
+        variogram,
+        screening,
+    ];
     all.extend(sections::covariates::build(&ctx, progress)?);
     all.push(sections::groups::build(&ctx, progress)?);
 
@@ -229,6 +237,10 @@ pub fn build_report(
             )
         }
         None => String::new(),
+    };
+    let structure_text = match &suggestion {
+        Some(s) => format!("{structure_text} Covariance screening: {s} (see that section)."),
+        None => structure_text,
     };
     let summary = format!(
         "{} subjects with {} observations of {}; follow-up per subject has median {} (range \

@@ -8,6 +8,7 @@ pub(crate) mod covariates;
 pub(crate) mod groups;
 pub(crate) mod individuals;
 pub(crate) mod overview;
+pub(crate) mod screening;
 pub(crate) mod trend;
 pub(crate) mod variogram;
 
