@@ -120,6 +120,22 @@ pub enum Layer {
         /// Fill colour.
         colour: String,
     },
+    /// Marked points of a few estimates: opaque circles of a given radius, each optionally
+    /// labelled just above it (for example with the count behind the estimate).
+    Markers {
+        /// Legend entry.
+        name: String,
+        /// x values.
+        x: Vec<f64>,
+        /// y values.
+        y: Vec<f64>,
+        /// Fill colour.
+        colour: String,
+        /// Radius, pixels.
+        radius: f64,
+        /// One label per point, written above it (none when empty).
+        labels: Vec<String>,
+    },
     /// A binned density of many points.
     Density {
         /// Legend entry.
@@ -191,6 +207,7 @@ impl Layer {
             Layer::Line { name, .. }
             | Layer::Band { name, .. }
             | Layer::Points { name, .. }
+            | Layer::Markers { name, .. }
             | Layer::Density { name, .. }
             | Layer::Bars { name, .. } => name,
         }
@@ -199,7 +216,9 @@ impl Layer {
     /// (x extent, y extent) of the finite values.
     fn extent(&self) -> (Span, Span) {
         match self {
-            Layer::Line { x, y, .. } | Layer::Points { x, y, .. } => (extent(x), extent(y)),
+            Layer::Line { x, y, .. } | Layer::Points { x, y, .. } | Layer::Markers { x, y, .. } => {
+                (extent(x), extent(y))
+            }
             Layer::Band {
                 x, lower, upper, ..
             } => (extent(x), extent(lower.iter().chain(upper.iter()))),
@@ -438,6 +457,34 @@ fn draw_layer(s: &mut Svg, layer: &Layer, xs: &Linear, ys: &Linear) {
             }
             s.close();
         }
+        Layer::Markers {
+            x,
+            y,
+            colour,
+            radius,
+            labels,
+            ..
+        } => {
+            let r = num(*radius);
+            s.open("g", &[("fill", colour)]);
+            for (a, b) in x.iter().zip(y) {
+                if a.is_finite() && b.is_finite() {
+                    let (cx, cy) = (num(xs.map(*a)), num(ys.map(*b)));
+                    s.leaf("circle", &[("cx", &cx), ("cy", &cy), ("r", &r)]);
+                }
+            }
+            s.close();
+            if !labels.is_empty() {
+                s.open("g", &[("font-size", "9"), ("fill", "#333333")]);
+                for ((a, b), label) in x.iter().zip(y).zip(labels) {
+                    if a.is_finite() && b.is_finite() {
+                        let at = ys.map(*b) - radius - 3.0;
+                        s.text(xs.map(*a), at, &[("text-anchor", "middle")], label);
+                    }
+                }
+                s.close();
+            }
+        }
         Layer::Density { density, .. } => draw_density(s, density, xs, ys),
         Layer::Bars {
             edges,
@@ -509,7 +556,9 @@ fn legend(s: &mut Svg, layers: &[Layer], x: f64, y: f64) {
         let cy = y + 8.0 + row * 18.0;
         let swatch = match layer {
             Layer::Line { colour, .. } | Layer::Band { colour, .. } => colour.clone(),
-            Layer::Points { colour, .. } | Layer::Bars { colour, .. } => colour.clone(),
+            Layer::Points { colour, .. }
+            | Layer::Markers { colour, .. }
+            | Layer::Bars { colour, .. } => colour.clone(),
             Layer::Density { .. } => palette::ramp(Ramp::Grey, 0.5),
         };
         let opacity = if matches!(layer, Layer::Band { .. }) {
@@ -701,11 +750,22 @@ mod tests {
             })
             .with(line(evil, &x, &[1.0, f64::NAN, 2.0], 1))
             .with(cloud(evil, &x, &x, 1))
+            .with(Layer::Markers {
+                name: evil.into(),
+                x: x.to_vec(),
+                y: vec![1.0, f64::NAN, 2.0],
+                colour: "#000000".into(),
+                radius: 3.0,
+                labels: vec![evil.into(); 3],
+            })
             .with(Histogram::of(&x, 3).layer(evil, 2));
         let svg = p.svg();
         assert!(!svg.contains("<script"));
         let seen = well_formed(&svg).unwrap();
         assert!(seen.contains(&"path".to_string()) && seen.contains(&"rect".to_string()));
+        // Markers: 2 finite points, each a circle and a label (the NaN one skipped).
+        assert_eq!(svg.matches("r=\"3\"").count(), 2);
+        assert!(svg.matches("&lt;script&gt;x&lt;/script&gt;</text>").count() >= 2);
         let sm = small_multiples(evil, &[p.clone(), p], evil, 150.0);
         assert!(!sm.contains("<script"));
         well_formed(&sm).unwrap();

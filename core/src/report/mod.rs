@@ -67,8 +67,8 @@ impl Default for ReportColumns {
 pub struct Report {
     /// The HTML document.
     pub html: String,
-    /// Every number shown, by section id (`overview`, `trend`, `individuals`, `covariates`,
-    /// `groups`), with the options and columns used and the summary text.
+    /// Every number shown, by section id (`overview`, `trend`, `individuals`, `correlation`,
+    /// `variogram`, `screening`, `covariates`, `groups`), with the options and columns used and the summary text.
     pub json: serde_json::Value,
 }
 
@@ -163,6 +163,8 @@ pub fn build_report(
 ) -> Result<Report> {
     let smoother = options.main_smoother()?;
     options.ranking_summary()?;
+    options.variogram()?;
+    options.variogram_fit()?;
     let ctx = Context {
         panel,
         columns,
@@ -173,8 +175,19 @@ pub fn build_report(
     progress("describe");
     let (overview, description) = sections::overview::build(&ctx)?;
     let (trend, main) = sections::trend::build(&ctx, progress)?;
-    let (individuals, flags) = sections::individuals::build(&ctx, &main, progress)?;
-    let mut all = vec![overview, trend, individuals];
+    let (individuals, flags, resid) = sections::individuals::build(&ctx, &main, progress)?;
+    // The variogram first: its fit is drawn beside the lag correlation.
+    let (variogram, fit) = sections::variogram::build(&ctx, &resid, progress)?;
+    let correlation = sections::correlation::build(&ctx, &resid, fit.as_ref(), progress);
+    let (screening, suggestion) = sections::screening::build(&ctx, &resid, progress)?;
+    let mut all = vec![
+        overview,
+        trend,
+        individuals,
+        correlation,
+        variogram,
+        screening,
+    ];
     all.extend(sections::covariates::build(&ctx, progress)?);
     all.push(sections::groups::build(&ctx, progress)?);
 
@@ -201,10 +214,38 @@ pub fn build_report(
             }
         ),
     };
+    let structure_text = match &fit {
+        Some(f) => {
+            let s = sections::variogram::Shares::of(f);
+            format!(
+                " Of the residual variance (nu^2 + sigma^2 + tau^2 of the {} variogram fit), \
+                 {}% is between subjects (random intercept), {}% serial correlation (range {} \
+                 {}) and {}% measurement error{}.",
+                f.model.name(),
+                fmt(100.0 * s.intercept),
+                fmt(100.0 * s.serial),
+                fmt(f.range),
+                columns.time_unit.as_deref().unwrap_or("time units"),
+                fmt(100.0 * s.error),
+                match f.warnings.len() {
+                    0 => String::new(),
+                    n => format!(
+                        "; the fit gave {n} warning{} (see the variogram section)",
+                        if n == 1 { "" } else { "s" }
+                    ),
+                }
+            )
+        }
+        None => String::new(),
+    };
+    let structure_text = match &suggestion {
+        Some(s) => format!("{structure_text} Covariance screening: {s} (see that section)."),
+        None => structure_text,
+    };
     let summary = format!(
         "{} subjects with {} observations of {}; follow-up per subject has median {} (range \
          {} to {}) and visits per subject median {}. The mean curve ({}) changes on average \
-         by {} {} over {} {} to {}. {}.",
+         by {} {} over {} {} to {}. {}.{}",
         description.subjects,
         description.observations,
         columns.response,
@@ -219,6 +260,7 @@ pub fn build_report(
         fmt(main.at.first().copied().unwrap_or(f64::NAN)),
         fmt(main.at.last().copied().unwrap_or(f64::NAN)),
         unusual_text,
+        structure_text,
     );
     let mut meta = vec![format!(
         "Columns: subject {}, time {}, response {}",

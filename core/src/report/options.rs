@@ -3,11 +3,14 @@
 
 use serde::Serialize;
 
+use crate::correlation::CorrelationOptions;
 use crate::curve::OptionValue;
 use crate::error::{Error, Result};
 use crate::mean_curve::BootstrapOptions;
 use crate::ranking::Summary;
 use crate::smoother::{Smoother, FAMILIES};
+use crate::variogram::fit::{Estimate, VariogramModel};
+use crate::variogram::{LagBins, VariogramOptions, MAX_LAG_BINS};
 
 /// A value as a front passes it. Lists may also come as text, comma-separated
 /// (`"0.1,0.5,0.9"`, `"lowess,spline"`), as a command line gives them.
@@ -37,7 +40,7 @@ impl std::fmt::Display for ReportValue {
 /// The option names [`ReportOptions::set`] accepts, besides `<family>.<option>` (for example
 /// `lowess.span`, `kernel.bandwidth`, `spline.df`, `super.span`), which sets that smoother's
 /// option wherever the family is used.
-pub const REPORT_OPTION_NAMES: [&str; 18] = [
+pub const REPORT_OPTION_NAMES: [&str; 28] = [
     "title",
     "smoother",
     "smoothers",
@@ -56,6 +59,16 @@ pub const REPORT_OPTION_NAMES: [&str; 18] = [
     "heatmap_rows",
     "group_levels",
     "unusual_threshold",
+    "correlation_min_count",
+    "correlation_level",
+    "variogram_model",
+    "variogram_estimate",
+    "lag_bins",
+    "lag_kind",
+    "max_lag",
+    "min_pairs",
+    "screen_subjects",
+    "screen_seed",
 ];
 
 /// Settings of a report. Build with `Default` and change by name with [`ReportOptions::set`].
@@ -103,6 +116,28 @@ pub struct ReportOptions {
     pub group_levels: usize,
     /// Robust z beyond which a subject counts as unusual (default 3.5).
     pub unusual_threshold: f64,
+    /// Fewest subjects behind a shown cell of the binned residual correlation (default 3,
+    /// as [`CorrelationOptions`]).
+    pub correlation_min_count: usize,
+    /// Coverage of the Fisher intervals of the binned correlation (default 0.95).
+    pub correlation_level: f64,
+    /// Variogram model fitted: "exponential" (default) or "gaussian".
+    pub variogram_model: String,
+    /// Bin estimates the model is fitted to: "classical" (default) or "robust".
+    pub variogram_estimate: String,
+    /// Lag bins of the variogram (default 20).
+    pub lag_bins: usize,
+    /// How lag bins are formed: "equal_width" (default) or "equal_count".
+    pub lag_kind: String,
+    /// Largest lag of the variogram; `None` takes the longest follow-up of any subject.
+    pub max_lag: Option<f64>,
+    /// Fewest pairs behind a variogram bin's estimate (default 30).
+    pub min_pairs: usize,
+    /// Subjects in the seeded subsample the covariance screening is fitted to (default 20000;
+    /// all subjects when there are no more).
+    pub screen_subjects: usize,
+    /// Seed of that subsample (default 1).
+    pub screen_seed: u64,
 }
 
 impl Default for ReportOptions {
@@ -128,6 +163,16 @@ impl Default for ReportOptions {
             heatmap_rows: 300,
             group_levels: 6,
             unusual_threshold: 3.5,
+            correlation_min_count: CorrelationOptions::default().min_count,
+            correlation_level: CorrelationOptions::default().level,
+            variogram_model: "exponential".into(),
+            variogram_estimate: "classical".into(),
+            lag_bins: 20,
+            lag_kind: "equal_width".into(),
+            max_lag: None,
+            min_pairs: VariogramOptions::default().min_pairs,
+            screen_subjects: 20_000,
+            screen_seed: 1,
         }
     }
 }
@@ -248,7 +293,7 @@ impl ReportOptions {
                 }
                 self.bootstrap_level = x;
             }
-            "bootstrap_seed" | "sample_seed" => {
+            "bootstrap_seed" | "sample_seed" | "screen_seed" => {
                 let s = whole(
                     name,
                     v,
@@ -256,10 +301,10 @@ impl ReportOptions {
                     9_007_199_254_740_991.0,
                     "a whole number from 0 to 2^53 - 1",
                 )?;
-                if name == "bootstrap_seed" {
-                    self.bootstrap_seed = s;
-                } else {
-                    self.sample_seed = s;
+                match name {
+                    "bootstrap_seed" => self.bootstrap_seed = s,
+                    "sample_seed" => self.sample_seed = s,
+                    _ => self.screen_seed = s,
                 }
             }
             "summary" => {
@@ -335,9 +380,118 @@ impl ReportOptions {
                 }
                 self.unusual_threshold = x;
             }
+            other => return self.set_structure_option(other, v),
+        }
+        Ok(())
+    }
+
+    /// The options of the correlation-structure sections (names in
+    /// [`REPORT_OPTION_NAMES`] after `unusual_threshold`); others go to the smoothers.
+    fn set_structure_option(&mut self, name: &str, v: &ReportValue) -> Result<()> {
+        let word = |allowed: &str| -> Result<String> {
+            match words(name, v, allowed)?.as_slice() {
+                [one] => Ok(one.clone()),
+                _ => Err(Error::option(name, v, allowed)),
+            }
+        };
+        match name {
+            "correlation_min_count" => {
+                let allowed = "a whole number of subjects from 2 to 1000000000";
+                self.correlation_min_count = whole(name, v, 2.0, 1e9, allowed)? as usize;
+            }
+            "correlation_level" => {
+                let x = number(name, v, "a number in (0, 1), e.g. 0.95")?;
+                if !(x > 0.0 && x < 1.0) {
+                    return Err(Error::option(name, v, "a number in (0, 1), e.g. 0.95"));
+                }
+                self.correlation_level = x;
+            }
+            "variogram_model" => {
+                let allowed = "\"exponential\" or \"gaussian\"";
+                let w = word(allowed)?;
+                VariogramModel::parse(&w).map_err(|_| Error::option(name, v, allowed))?;
+                self.variogram_model = w;
+            }
+            "variogram_estimate" => {
+                let allowed = "\"classical\" or \"robust\"";
+                let w = word(allowed)?;
+                Estimate::parse(&w).map_err(|_| Error::option(name, v, allowed))?;
+                self.variogram_estimate = w;
+            }
+            "lag_bins" => {
+                let allowed = format!("a whole number of bins from 1 to {MAX_LAG_BINS}");
+                self.lag_bins = whole(name, v, 1.0, MAX_LAG_BINS as f64, &allowed)? as usize;
+            }
+            "lag_kind" => {
+                let allowed = "\"equal_width\" or \"equal_count\"";
+                let w = word(allowed)?;
+                if w != "equal_width" && w != "equal_count" {
+                    return Err(Error::option(name, v, allowed));
+                }
+                self.lag_kind = w;
+            }
+            "max_lag" => {
+                let x = number(name, v, "a time span > 0")?;
+                if x <= 0.0 {
+                    return Err(Error::option(name, v, "a time span > 0"));
+                }
+                self.max_lag = Some(x);
+            }
+            "min_pairs" => {
+                let allowed = "a whole number of pairs from 1 to 1000000000";
+                self.min_pairs = whole(name, v, 1.0, 1e9, allowed)? as usize;
+            }
+            "screen_subjects" => {
+                let allowed = "a whole number of subjects from 10 to 100000000";
+                self.screen_subjects = whole(name, v, 10.0, 1e8, allowed)? as usize;
+            }
             other => return self.set_family_option(other, v),
         }
         Ok(())
+    }
+
+    /// Settings of the binned residual correlation.
+    pub fn correlation(&self) -> CorrelationOptions {
+        CorrelationOptions {
+            level: self.correlation_level,
+            min_count: self.correlation_min_count,
+        }
+    }
+
+    /// Settings of the empirical variogram (no pair sample, no smoothed variogram).
+    ///
+    /// # Errors
+    /// Those of [`LagBins::from_options`] (a `lag_kind` or `lag_bins` set by hand out of range).
+    pub fn variogram(&self) -> Result<VariogramOptions> {
+        Ok(VariogramOptions {
+            bins: LagBins::from_options(Some(&self.lag_kind), Some(self.lag_bins as f64), None)?,
+            max_lag: self.max_lag,
+            min_pairs: self.min_pairs,
+            ..VariogramOptions::default()
+        })
+    }
+
+    /// The variogram model and the estimate it is fitted to.
+    ///
+    /// # Errors
+    /// [`Error::InvalidOption`] naming `variogram_model` or `variogram_estimate` for a name
+    /// set by hand that is not known.
+    pub fn variogram_fit(&self) -> Result<(VariogramModel, Estimate)> {
+        let model = VariogramModel::parse(&self.variogram_model).map_err(|_| {
+            Error::option(
+                "variogram_model",
+                format!("{:?}", self.variogram_model),
+                "\"exponential\" or \"gaussian\"",
+            )
+        })?;
+        let estimate = Estimate::parse(&self.variogram_estimate).map_err(|_| {
+            Error::option(
+                "variogram_estimate",
+                format!("{:?}", self.variogram_estimate),
+                "\"classical\" or \"robust\"",
+            )
+        })?;
+        Ok((model, estimate))
     }
 
     fn set_family_option(&mut self, name: &str, v: &ReportValue) -> Result<()> {

@@ -127,12 +127,13 @@ pub(crate) fn rank_order(ranking: &Ranking, n_subjects: usize) -> Vec<f64> {
     order
 }
 
-/// The section and the unusual-subject flags (for the summary).
+/// The section, the unusual-subject flags (for the summary) and the residuals (panel order,
+/// for the correlation-structure sections).
 pub(crate) fn build(
     ctx: &Context,
     main: &MeanCurve,
     progress: &mut dyn FnMut(&str),
-) -> Result<(Section, Unusual)> {
+) -> Result<(Section, Unusual, Vec<f64>)> {
     let (o, panel) = (ctx.options, ctx.panel);
     progress("residuals and ranking");
     let res = residuals(panel, &MeanModel::Curve(main.curve.clone()))?;
@@ -345,6 +346,7 @@ pub(crate) fn build(
             numbers,
         ),
         flags,
+        res.residuals,
     ))
 }
 

@@ -3,11 +3,14 @@
 //! example correlation ones) are added the same way, as one more function and one more line in
 //! [`super::build_report`].
 
+pub(crate) mod correlation;
 pub(crate) mod covariates;
 pub(crate) mod groups;
 pub(crate) mod individuals;
 pub(crate) mod overview;
+pub(crate) mod screening;
 pub(crate) mod trend;
+pub(crate) mod variogram;
 
 use super::html::{Figure, Section};
 use super::options::ReportOptions;
