@@ -93,3 +93,8 @@ print.trajweave_variogram_fit <- function(x, ...) {
   for (w in x$warnings) cat("warning: ", w, "\n", sep = "")
   invisible(x)
 }
+
+process_variance <- function(panel, residuals) {
+  tw_check_panel(panel)
+  tw_value(.Call(wrap__tw_process_variance, panel[["pointer"]], tw_residual_values(residuals)))
+}

@@ -8,7 +8,8 @@
 //! Files mirror the core's modules: `panel.rs`, `describe.rs`, `simulate.rs`, `smoother.rs`
 //! (with the curve's `predict`), `mean_curve.rs`, `tune.rs`, `individuals.rs` (residuals,
 //! ranking, sample, unusual), `covariates.rs` (bands, conditional, groups, trajectory_grid),
-//! `correlation.rs` (binned correlation), `variogram.rs` (variogram and its fit), `error.rs`;
+//! `correlation.rs` (binned correlation), `variogram.rs` (variogram, process variance and the variogram fit), `screen.rs`
+//! (covariance-structure screening), `error.rs`;
 //! `convert.rs` and `json.rs` hold the R value conversions they share.
 
 use extendr_api::prelude::*;
@@ -23,6 +24,7 @@ mod json;
 mod mean_curve;
 mod panel;
 mod report;
+mod screen;
 mod simulate;
 mod smoother;
 mod tune;
@@ -41,5 +43,6 @@ extendr_module! {
     use covariates;
     use correlation;
     use variogram;
+    use screen;
     use report;
 }

@@ -1,5 +1,5 @@
-//! The empirical variogram and its parametric fit (core modules `variogram` and
-//! `variogram::fit`).
+//! The empirical variogram, the process variance alone, and the variogram's parametric fit
+//! (core modules `variogram` and `variogram::fit`).
 //!
 //! The variogram crosses as an R list (bins as a data.frame, `NA` where the core has NaN). For
 //! the fit it travels back: [`variogram_from`] rebuilds the core [`Variogram`] from that list,
@@ -9,7 +9,9 @@
 
 use extendr_api::prelude::*;
 use trajweave_core::variogram::fit::{fit_variogram, Estimate, VariogramModel};
-use trajweave_core::variogram::{variogram, PairSample, Variogram, VariogramOptions};
+use trajweave_core::variogram::{
+    process_variance, variogram, PairSample, Variogram, VariogramOptions,
+};
 use trajweave_core::SubjectId;
 
 use crate::convert::{
@@ -343,8 +345,22 @@ fn run_fit(vg: &Robj, model: &Robj, estimate: &Robj) -> Outcome {
     )
 }
 
+/// The process variance of `residuals` (one per input row, the caller's order): the mean of
+/// (r_j - r_k)^2 / 2 over pairs of rows of different subjects.
+#[extendr]
+fn tw_process_variance(panel: Robj, residuals: Robj) -> Robj {
+    respond(run_process_variance(&panel, &residuals))
+}
+
+fn run_process_variance(panel: &Robj, values: &Robj) -> Outcome {
+    let panel = panel_ref(panel)?;
+    let r = panel_residuals(panel, values)?;
+    Ok(process_variance(panel, &r)?.into())
+}
+
 extendr_module! {
     mod variogram;
     fn tw_variogram;
     fn tw_fit_variogram;
+    fn tw_process_variance;
 }

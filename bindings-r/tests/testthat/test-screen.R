@@ -1,0 +1,250 @@
+# Covariance screening: structure_loglik(), screen_structures() and process_variance().
+# Every expected value is computed here with base R (chol, backsolve, crossprod, outer) or is
+# the generating truth of a simulation; none comes from trajweave itself.
+
+TOL_LOGLIK <- 1e-9
+TOL_PROCESS <- 1e-12
+
+# Base R: the multivariate normal log density of r_i ~ N(0, V_i), summed over subjects, with
+# V_i = L L' from chol() (R returns the upper factor U = L'):
+# -1/2 (n log 2 pi + 2 sum log diag(L) + |L^-1 r|^2).
+mvn_loglik <- function(id, t, r, covariance) {
+  total <- 0
+  for (s in unique(id)) {
+    k <- which(id == s)
+    k <- k[order(t[k])]
+    V <- covariance(t[k])
+    U <- chol(V)
+    z <- backsolve(U, r[k], transpose = TRUE) # solves L z = r
+    total <- total - 0.5 * (length(k) * log(2 * pi) + 2 * sum(log(diag(U))) + sum(z^2))
+  }
+  total
+}
+
+# A seeded panel with irregular, distinct visit times per subject (1 to 6 visits), rows
+# shuffled so that the caller's order is not the panel's.
+irregular_frame <- function() {
+  set.seed(21)
+  rows <- list()
+  for (i in 1:30) {
+    n <- sample(1:6, 1)
+    t <- sort(runif(n, 0, 5))
+    rows[[i]] <- data.frame(id = i, t = t, r = rnorm(n, sd = 1.5))
+  }
+  d <- do.call(rbind, rows)
+  d[sample(nrow(d)), ]
+}
+
+test_that("structure_loglik matches a base-R normal density on irregular visits", {
+  d <- irregular_frame()
+  p <- panel(d$id, d$t, d$r)
+  lag <- function(t) abs(outer(t, t, "-"))
+  cases <- list(
+    independence = list(c(2.3), function(t) diag(2.3, length(t))),
+    exchangeable = list(
+      c(1.5, 0.7),
+      function(t) matrix(1.5, length(t), length(t)) + diag(0.7, length(t))
+    ),
+    exponential = list(c(2, 1.3), function(t) 2 * exp(-lag(t) / 1.3)),
+    gaussian = list(c(2, 1.3), function(t) 2 * exp(-(lag(t) / 1.3)^2)),
+    intercept_exponential_error = list(
+      c(1.2, 0.8, 1.5, 0.4),
+      function(t) 1.2 + 0.8 * exp(-lag(t) / 1.5) + diag(0.4, length(t))
+    )
+  )
+  for (name in names(cases)) {
+    expected <- mvn_loglik(d$id, d$t, d$r, cases[[name]][[2]]) # base::chol, base::backsolve
+    got <- structure_loglik(p, d$r, name, cases[[name]][[1]])
+    expect_equal(got, expected, tolerance = TOL_LOGLIK, info = name)
+  }
+})
+
+test_that("structure_loglik matches a base-R normal density for toeplitz and unstructured on a schedule", {
+  set.seed(22)
+  k <- 5
+  rows <- list()
+  for (i in 1:40) {
+    seen <- sort(c(0, sample(1:(k - 1), sample(2:(k - 1), 1)))) # bins of the visits
+    rows[[i]] <- data.frame(id = i, t = seen + runif(length(seen), -0.2, 0.2), bin = seen + 1)
+  }
+  d <- do.call(rbind, rows)
+  d$r <- rnorm(nrow(d))
+  d <- d[sample(nrow(d)), ]
+  p <- panel(d$id, d$t, d$r)
+  schedule <- 0:(k - 1)
+  bin_of <- function(t) round(t) + 1 # the schedule window each visit lies in
+
+  lags <- c(2, 1.2, 0.8, 0.5, 0.3)
+  toeplitz_V <- stats::toeplitz(lags)
+  expected <- mvn_loglik(d$id, d$t, d$r, function(t) toeplitz_V[bin_of(t), bin_of(t), drop = FALSE])
+  got <- structure_loglik(p, d$r, "toeplitz", lags, schedule = schedule, tolerance = 0.25)
+  expect_equal(got, expected, tolerance = TOL_LOGLIK) # stats::toeplitz, base::chol
+
+  A <- matrix(rnorm(k * k), k)
+  S <- crossprod(A) + diag(0.5, k)
+  upper_by_row <- t(S)[lower.tri(S, diag = TRUE)] # cov_0_0, cov_0_1, ..., cov_1_1, ...
+  expected <- mvn_loglik(d$id, d$t, d$r, function(t) S[bin_of(t), bin_of(t), drop = FALSE])
+  got <- structure_loglik(p, d$r, "unstructured", upper_by_row, schedule = schedule, tolerance = 0.25)
+  expect_equal(got, expected, tolerance = TOL_LOGLIK) # base::chol
+})
+
+test_that("structure_loglik is -Inf where base R finds the matrix not positive definite", {
+  # Two visits at the same time make two rows of a pure serial covariance equal.
+  p <- panel(c(1, 1, 2, 2), c(0, 0, 0, 1), c(0.5, -0.2, 1, 0.3))
+  V <- 2 * exp(-abs(outer(c(0, 0), c(0, 0), "-")) / 1)
+  expect_identical(qr(V)$rank, 1L) # base::qr: singular
+  expect_identical(structure_loglik(p, c(0.5, -0.2, 1, 0.3), "exponential", c(2, 1)), -Inf)
+})
+
+# Simulated panels with the covariate effects, the random slope and dropout switched off, so the
+# residuals from the generating mean 58 - 1.2 t are intercept + serial process + error only.
+plain_simulation <- function(subjects, seed, ...) {
+  simulate_panel(
+    subjects = subjects, seed = seed, age_effect = 0, female_effect = 0, diabetes_slope = 0,
+    acr_slope = 0, sd_slope = 0, dropout_base = -50, dropout_decline = 0,
+    dialysis_threshold = -1e9, ...
+  )
+}
+
+screen_simulation <- function(sim, ...) {
+  p <- panel_from_frame(sim, "patient", "years", "egfr")
+  r <- sim$egfr - (58 - 1.2 * sim$years)
+  list(panel = p, residuals = r, screening = screen_structures(p, r, ...))
+}
+
+# The maximised log-likelihood of every finite fit equals structure_loglik at its parameters.
+expect_loglik_at_parameters <- function(x, ...) {
+  s <- x$screening
+  for (i in which(is.finite(s$fits$loglik))) {
+    name <- s$fits$structure[i]
+    again <- structure_loglik(x$panel, x$residuals, name, s$parameters[[name]], ...)
+    expect_equal(again, s$fits$loglik[i], tolerance = TOL_LOGLIK, info = name)
+  }
+}
+
+# Each estimate within `share` of the generating value (the truth of the simulation).
+expect_near_truth <- function(estimate, truth, share) {
+  expect_named(estimate, names(truth))
+  expect_true(all(abs(estimate / truth - 1) < share), info = paste(format(estimate), collapse = " "))
+}
+
+test_that("screen_structures ranks the generating structure first and recovers it", {
+  # 2000 subjects, about 15000 visits: sampling errors of a few per cent.
+  # Random intercept plus error only (serial_sd = 0): exchangeable, nu2 = 100, tau2 = 9.
+  ex <- screen_simulation(plain_simulation(2000, 7, serial_sd = 0))
+  s <- ex$screening
+  expect_s3_class(s, "trajweave_screening")
+  expect_identical(s$fits$structure[1], "exchangeable")
+  expect_near_truth(s$parameters$exchangeable,
+    c(intercept_variance = 100, error_variance = 9), 0.1
+  )
+  expect_loglik_at_parameters(ex)
+
+  # The defaults: intercept (sd 10) + exponential serial (sd 4, range 1.5) + error (sd 3).
+  iee <- screen_simulation(plain_simulation(2000, 8))
+  s <- iee$screening
+  expect_identical(s$fits$structure[1], "intercept_exponential_error")
+  expect_near_truth(s$parameters$intercept_exponential_error,
+    c(intercept_variance = 100, serial_variance = 16, range = 1.5, error_variance = 9), 0.15
+  )
+  expect_loglik_at_parameters(iee)
+
+  # Serial process alone (no intercept, no error): exponential, s2 = 16, range 1.5.
+  expo <- screen_simulation(plain_simulation(2000, 9, sd_intercept = 0, noise_sd = 0))
+  s <- expo$screening
+  expect_identical(s$fits$structure[1], "exponential")
+  expect_near_truth(s$parameters$exponential, c(variance = 16, range = 1.5), 0.1)
+  expect_loglik_at_parameters(expo)
+})
+
+test_that("screen_structures reports every field, AIC and BIC by their definitions", {
+  x <- screen_simulation(plain_simulation(150, 3))
+  s <- x$screening
+  f <- s$fits
+  expect_named(f, c(
+    "structure", "n_parameters", "loglik", "aic", "bic", "delta_aic", "delta_bic",
+    "iterations", "converged", "note"
+  ))
+  expect_identical(names(s$parameters), f$structure)
+  expect_identical(unname(lengths(s$parameters)), as.integer(f$n_parameters))
+  expect_identical(f$structure, f$structure[order(f$aic)])
+  expect_equal(s$observations, length(x$residuals)) # no row dropped
+  expect_equal(s$subjects, 150) # every simulated subject has a first visit
+  # Akaike (1974), Schwarz (1978) with N the observations.
+  expect_equal(f$aic, -2 * f$loglik + 2 * f$n_parameters, tolerance = 1e-14)
+  expect_equal(f$bic, -2 * f$loglik + f$n_parameters * log(length(x$residuals)), tolerance = 1e-14)
+  expect_equal(f$delta_aic, f$aic - min(f$aic), tolerance = 1e-14)
+  expect_identical(s$skipped$structure, c("toeplitz", "unstructured")) # no grid given
+  expect_output(print(s), "covariance screening")
+})
+
+test_that("unstructured on complete data is the base-R covariance of the residual table", {
+  # Every subject seen at 0, 0.5, ..., 5 (no jitter, no missed visit, same follow-up).
+  sim <- plain_simulation(200, 5, visit_jitter = 0, missed_visit = 0, min_years = 5, max_years = 5)
+  schedule <- seq(0, 5, by = 0.5)
+  x <- screen_simulation(sim,
+    candidates = c("unstructured", "toeplitz", "exponential"), schedule = schedule,
+    tolerance = 0.1
+  )
+  s <- x$screening
+  expect_setequal(s$fits$structure, c("unstructured", "toeplitz", "exponential"))
+  wide <- matrix(x$residuals[order(sim$patient, sim$years)], ncol = length(schedule), byrow = TRUE)
+  S <- crossprod(wide) / nrow(wide) # the complete-data ML covariance (divisor m)
+  expect_equal(unname(s$parameters$unstructured), t(S)[lower.tri(S, diag = TRUE)],
+    tolerance = 1e-8
+  )
+  expect_loglik_at_parameters(x, schedule = schedule, tolerance = 0.1)
+})
+
+test_that("process_variance matches a brute-force mean over between-subject pairs", {
+  d <- irregular_frame()
+  p <- panel(d$id, d$t, d$r)
+  half_sq <- outer(d$r, d$r, "-")^2 / 2
+  between <- outer(d$id, d$id, "!=") & upper.tri(half_sq)
+  expected <- mean(half_sq[between]) # base::outer over all pairs of rows
+  expect_equal(process_variance(p, d$r), expected, tolerance = TOL_PROCESS)
+  # The same number variogram() reports beside its bins.
+  vg <- variogram(p, d$r, lag_bins = 2, min_pairs = 1)
+  expect_equal(process_variance(p, d$r), vg$process_variance, tolerance = 0)
+})
+
+test_that("screening refuses bad input with classed conditions naming the argument", {
+  d <- irregular_frame()
+  p <- panel(d$id, d$t, d$r)
+  expect_error(screen_structures(p, d$r, candidates = "ar1"),
+    class = "trajweave_invalid_option", regexp = "`candidates` = \"ar1\""
+  )
+  expect_error(screen_structures(p, d$r, candidates = NA_character_),
+    class = "trajweave_invalid_option", regexp = "`candidates`"
+  )
+  expect_error(structure_loglik(p, d$r, "ar1", 1),
+    class = "trajweave_invalid_option", regexp = "`structure`"
+  )
+  expect_error(structure_loglik(p, d$r, "exponential", 1),
+    class = "trajweave_invalid_option", regexp = "`parameters`.*exponential takes 2 parameters"
+  )
+  expect_error(screen_structures(p, d$r, candidates = "toeplitz"),
+    class = "trajweave_invalid_option", regexp = "`grid`"
+  )
+  expect_error(structure_loglik(p, d$r, "unstructured", 1),
+    class = "trajweave_invalid_option", regexp = "`grid`"
+  )
+  expect_error(screen_structures(p, d$r[-1]),
+    class = "trajweave_length_mismatch", regexp = "`residuals`"
+  )
+  expect_error(structure_loglik(p, c(d$r, 0), "independence", 1),
+    class = "trajweave_length_mismatch", regexp = "`residuals`"
+  )
+  expect_error(process_variance(p, d$r[-1]),
+    class = "trajweave_length_mismatch", regexp = "`residuals`"
+  )
+  expect_error(screen_structures(p, d$r, convergence = 0.5),
+    class = "trajweave_invalid_option", regexp = "`convergence`"
+  )
+  expect_error(screen_structures(p, d$r, max_iterations = 0),
+    class = "trajweave_invalid_option", regexp = "`max_iterations`"
+  )
+  expect_error(screen_structures(p, "a"),
+    class = "trajweave_invalid_option", regexp = "`residuals`"
+  )
+})
