@@ -1,8 +1,9 @@
-//! `trajweave correlation` and `trajweave variogram`: the correlation structure of residuals
-//! from a mean model, as JSON.
+//! `trajweave correlation`, `variogram` and `screen`: the correlation structure of residuals
+//! from a mean model and candidate covariance structures, as JSON.
 
 use clap::Args;
 use trajweave_core::correlation::{binned_correlation, CorrelationOptions};
+use trajweave_core::screen::{screen_structures, ScreenOptions};
 use trajweave_core::smoother::Smoother;
 use trajweave_core::variogram::fit::{fit_variogram, Estimate, VariogramModel};
 use trajweave_core::variogram::{variogram, VariogramOptions};
@@ -120,5 +121,47 @@ pub fn run_variogram(a: &VariogramArgs) -> Result<(), CliError> {
         }
     }
     let out = serde_json::json!({ "model": r.model, "variogram": vg, "fit": fit });
+    write_out(std::path::Path::new("-"), json(&out)?.as_bytes())
+}
+
+#[derive(Args)]
+pub struct ScreenArgs {
+    #[command(flatten)]
+    panel: PanelArgs,
+    #[command(flatten)]
+    mean: MeanArgs,
+    /// Structures to fit, comma-separated (default all): independence, exchangeable,
+    /// exponential, gaussian, intercept_exponential_error, toeplitz, unstructured.
+    #[arg(long, value_delimiter = ',')]
+    candidates: Option<Vec<String>>,
+    /// Time-bin edges for toeplitz and unstructured, comma-separated.
+    #[arg(long, value_delimiter = ',', allow_hyphen_values = true)]
+    edges: Option<Vec<f64>>,
+    /// Nominal visit times for toeplitz and unstructured (needs --tolerance).
+    #[arg(long, value_delimiter = ',', allow_hyphen_values = true)]
+    schedule: Option<Vec<f64>>,
+    /// Half-width of the window around each nominal time.
+    #[arg(long, allow_hyphen_values = true)]
+    tolerance: Option<f64>,
+    /// Cap on each optimiser's iterations.
+    #[arg(long)]
+    max_iterations: Option<f64>,
+    /// Relative convergence tolerance of the optimisers.
+    #[arg(long, allow_hyphen_values = true)]
+    convergence: Option<f64>,
+}
+
+pub fn run_screen(a: &ScreenArgs) -> Result<(), CliError> {
+    let grid = TimeGrid::from_options(a.edges.clone(), a.schedule.clone(), a.tolerance)?;
+    let options = ScreenOptions::from_front(
+        a.candidates.as_deref(),
+        grid,
+        a.max_iterations,
+        a.convergence,
+    )?;
+    let panel = a.panel.read()?;
+    let r = a.mean.residuals(&panel)?;
+    let s = screen_structures(&panel, &r.residuals, &options)?;
+    let out = serde_json::json!({ "model": r.model, "screening": s });
     write_out(std::path::Path::new("-"), json(&out)?.as_bytes())
 }

@@ -51,6 +51,8 @@ enum Command {
     Correlation(correlation::CorrelationArgs),
     /// Empirical variogram of residuals, the process variance and a fitted model.
     Variogram(correlation::VariogramArgs),
+    /// Candidate covariance structures fitted by likelihood, ranked by AIC.
+    Screen(correlation::ScreenArgs),
     /// The whole exploration as one HTML page with figures, plus a JSON of every number
     /// (without a FILE: the bundled demo data).
     Report(report::ReportArgs),
@@ -149,6 +151,7 @@ fn main() -> ExitCode {
         Command::Grid(a) => covariates::run_grid(&a),
         Command::Correlation(a) => correlation::run_correlation(&a),
         Command::Variogram(a) => correlation::run_variogram(&a),
+        Command::Screen(a) => correlation::run_screen(&a),
         Command::Report(a) => report::run_report(&a),
     };
     match result {

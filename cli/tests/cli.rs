@@ -532,3 +532,40 @@ fn report_from_a_file_with_settings() {
         stderr(&o)
     );
 }
+
+#[test]
+fn screen_ranks_and_refuses_unknown_names() {
+    let mut csv = String::from("id,t,y\n");
+    for s in 0..40 {
+        for k in 0..5 {
+            csv += &format!(
+                "{s},{k},{}\n",
+                (s % 7) as f64 + ((s * 13 + k * 5) % 11) as f64 * 0.3
+            );
+        }
+    }
+    let path = temp_csv("screen.csv", &csv);
+    let o = on_file(
+        "screen",
+        &path,
+        &["--candidates", "independence,exchangeable"],
+    );
+    assert!(o.status.success(), "{}", stderr(&o));
+    let d: Value = serde_json::from_slice(&o.stdout).unwrap();
+    let fits = d["screening"]["fits"].as_array().unwrap();
+    assert_eq!(fits.len(), 2);
+    // Independence has one parameter, its variance (the closed form is checked in the core).
+    let f = fits
+        .iter()
+        .find(|f| f["structure"] == "independence")
+        .unwrap();
+    assert_eq!(f["n_parameters"], 1);
+    let o = on_file("screen", &path, &["--candidates", "ar1"]);
+    assert!(
+        stderr(&o).starts_with("error [invalid_option]: `candidates`"),
+        "{}",
+        stderr(&o)
+    );
+    let o = on_file("screen", &path, &["--candidates", "toeplitz"]);
+    assert!(stderr(&o).contains("`grid`"), "{}", stderr(&o));
+}

@@ -307,3 +307,26 @@ def test_report_chickweight_three_fronts(tmp_path):
     numbers = json.loads((tmp_path / "cli.json").read_text())
     assert numbers["sections"]["overview"]["subjects"] == 50
     assert numbers["sections"]["overview"]["observations"] == 578
+
+
+def test_screening_three_fronts(tmp_path):
+    # Covariance screening of degree-1 polynomial residuals of the demo data, a subset of
+    # candidates: CLI = Python exactly, R within 1e-12 (log-likelihoods) and 1e-9 (parameters).
+    cands = ["independence", "exchangeable", "exponential", "intercept_exponential_error"]
+    from_cli = json.loads(cli("screen", DEMO, "--subject", "patient", "--time", "years",
+                              "--response", "egfr", "--candidates", ",".join(cands)))["screening"]
+    df = pd.read_csv(DEMO)
+    panel = tw.Panel.from_frame(df, "patient", "years", "egfr")
+    r = tw.residuals(panel, tw.Polynomial(1))
+    s = tw.screen_structures(panel, r, candidates=cands)
+    assert from_cli == s.to_dict()
+    code = (f'df <- read.csv("{DEMO}")\n'
+            'p <- panel_from_frame(df, "patient", "years", "egfr")\n'
+            'r <- panel_residuals(p, residuals_polynomial(1))$residuals\n'
+            f's <- screen_structures(p, r, candidates = c({", ".join(repr(c) for c in cands)}))\n'
+            'cat(jsonlite::toJSON(list(structure = s$fits$structure, loglik = s$fits$loglik, '
+            'parameters = unname(lapply(s$parameters, unname))), digits = NA, auto_unbox = TRUE))')
+    from_r = json.loads(rscript(code, tmp_path))
+    assert from_r["structure"] == [f["structure"] for f in s.fits]
+    same(from_r["loglik"], [f["loglik"] for f in s.fits], rel=R_REL_TOL)
+    same(from_r["parameters"], [f["parameters"] for f in s.fits], rel=1e-9)

@@ -225,3 +225,45 @@ def test_bad_input(call, kind, argument):
     with pytest.raises(kind) as e:
         call(tw.Panel(ids, t, r), r)
     assert argument in str(e.value)
+
+
+def test_structure_loglik_vs_scipy_logpdf():
+    # scipy.stats.multivariate_normal.logpdf summed over subjects, at fixed parameters.
+    ids, t, r = irregular(subjects=40, seed=8)
+    p = tw.Panel(ids, t, r)
+    cases = {
+        "independence": ([2.0], lambda d: 2.0 * np.eye(len(d))),
+        "exchangeable": ([1.5, 0.7], lambda d: 1.5 + 0.7 * np.eye(len(d))),
+        "exponential": ([2.0, 1.3], lambda d: 2.0 * np.exp(-d / 1.3)),
+        "gaussian": ([2.0, 0.9], lambda d: 2.0 * np.exp(-(d / 0.9) ** 2)),
+        "intercept_exponential_error": ([1.0, 1.5, 2.0, 0.4],
+                                        lambda d: 1.0 + 1.5 * np.exp(-d / 2.0) + 0.4 * np.eye(len(d))),
+    }
+    for name, (params, cov) in cases.items():
+        expected = 0.0
+        for s in np.unique(ids):
+            m = ids == s
+            d = np.abs(t[m][:, None] - t[m][None, :])
+            expected += stats.multivariate_normal(np.zeros(m.sum()), cov(d)).logpdf(r[m])
+        assert abs(tw.structure_loglik(p, r, name, params) - expected) < 1e-9 * abs(expected), name
+
+
+def test_screening_maxima_are_the_loglik_at_their_parameters():
+    df = tw.simulate(subjects=600, seed=5, sd_slope=0, age_effect=0, female_effect=0,
+                     diabetes_slope=0, acr_slope=0)
+    p = tw.Panel.from_frame(df, "patient", "years", "egfr")
+    r = df.egfr.to_numpy() - (58.0 - 1.2 * df.years.to_numpy())
+    s = tw.screen_structures(p, r)
+    assert s.fits[0]["structure"] == "intercept_exponential_error"
+    aics = [f["aic"] for f in s.fits]
+    assert aics == sorted(aics) and s.fits[0]["delta_aic"] == 0.0
+    for f in s.fits:
+        l = tw.structure_loglik(p, r, f["structure"], f["parameters"])
+        assert abs(l - f["loglik"]) <= 1e-9 * abs(l)
+        # Akaike (1974) and Schwarz (1978) by their definitions, N = observations.
+        assert math.isclose(f["aic"], -2 * l + 2 * f["n_parameters"], rel_tol=1e-12)
+        assert math.isclose(f["bic"], -2 * l + f["n_parameters"] * math.log(len(r)), rel_tol=1e-12)
+    with pytest.raises(tw.InvalidOptionError, match="candidates"):
+        tw.screen_structures(p, r, candidates=["ar1"])
+    with pytest.raises(tw.InvalidOptionError, match="grid"):
+        tw.screen_structures(p, r, candidates=["toeplitz"])
