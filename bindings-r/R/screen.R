@@ -30,7 +30,7 @@ print.trajweave_screening <- function(x, ...) {
     " subjects, best by AIC first>\n",
     sep = ""
   )
-  print(x$fits[, c("structure", "n_parameters", "loglik", "aic", "bic", "delta_aic", "converged")],
+  print(x$fits[, c("structure", "n_parameters", "loglik", "aic", "delta_aic", "converged")],
     row.names = FALSE, digits = 6
   )
   for (i in which(!is.na(x$fits$note))) {

@@ -94,6 +94,18 @@ test_that("structure_loglik is -Inf where base R finds the matrix not positive d
   V <- 2 * exp(-abs(outer(c(0, 0), c(0, 0), "-")) / 1)
   expect_identical(qr(V)$rank, 1L) # base::qr: singular
   expect_identical(structure_loglik(p, c(0.5, -0.2, 1, 0.3), "exponential", c(2, 1)), -Inf)
+
+  # The screening keeps such a fit, last, with loglik -Inf and NA parameters.
+  set.seed(23)
+  id <- rep(1:20, each = 4)
+  t <- rep(c(0, 1, 1, 2), 20)
+  r <- rnorm(80) + rep(rnorm(20), each = 4)
+  s <- screen_structures(panel(id, t, r), r, candidates = c("exponential", "exchangeable"))
+  expect_identical(s$fits$structure, c("exchangeable", "exponential"))
+  expect_identical(s$fits$loglik[2], -Inf)
+  expect_identical(s$fits$delta_aic[2], Inf)
+  expect_true(all(is.na(s$parameters$exponential)))
+  expect_false(is.na(s$fits$note[2]))
 })
 
 # Simulated panels with the covariate effects, the random slope and dropout switched off, so the
