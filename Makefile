@@ -78,11 +78,15 @@ fixtures-check: setup
 	$(PY) tests/reference/covariates_py.py --check
 	Rscript tests/reference/residuals_r.R --check
 	$(PY) tests/reference/residuals_py.py --check
+	$(PY) tests/reference/screen_py.py --check
 
 # Speed: criterion per smoother, then ours vs the reference libraries side by side.
 bench: cli python r
 	cargo bench -p trajweave-core --bench smoothers
+	cargo bench -p trajweave-core --bench correlation
 	$(PY) scripts/bench_compare.py
+	$(PY) scripts/bench_correlation.py
+	$(PY) scripts/bench_report.py
 
 clean:
 	cargo clean

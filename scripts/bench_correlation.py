@@ -1,6 +1,7 @@
 """Times the variogram, the process variance and the binned correlation through the Python
 and R bindings, beside hand-written versions with numpy, pandas and base R on the same data,
-and prints the ratio ours / theirs.
+and prints the ratio ours / theirs; and the screening of all seven covariance candidates
+(toeplitz and unstructured on the yearly schedule), which has no hand-written rival.
 
 Data: `subjects` subjects x 10 visits (default 1e5), visit k at k + U(-0.15, 0.15) years,
 residual = subject effect N(0, 2^2) + N(0, 1), numpy seed 1. "Unequal" drops each visit after
@@ -130,15 +131,16 @@ out <- list(
   ours = timeit(function() variogram(p, d$r, lag_edges = edges)),
   hand = timeit(hand, 1)
 )
+if ({screen}) out$screen <- timeit(function() screen_structures(p, d$r, schedule = 0:9, tolerance = 0.5), 1)
 cat(jsonlite::toJSON(out, auto_unbox = TRUE, digits = NA))
 """
 
 
-def r_rows(ids, t, r, repeat):
+def r_rows(ids, t, r, repeat, screen=False):
     with tempfile.TemporaryDirectory() as tmp:
         f = Path(tmp) / "d.csv"
         pd.DataFrame(dict(s=ids, t=t, r=r)).to_csv(f, index=False)
-        out = subprocess.run(["Rscript", "-e", R_CODE.format(rlib=RLIB, file=f, repeat=repeat)],
+        out = subprocess.run(["Rscript", "-e", R_CODE.format(rlib=RLIB, file=f, repeat=repeat, screen="TRUE" if screen else "FALSE")],
                              capture_output=True, text=True)
         if out.returncode != 0:
             raise SystemExit(out.stderr)
@@ -180,9 +182,14 @@ def main():
         row(f"binned correlation ({label})", s, ours, "numpy moment sums", theirs)
         ref, theirs = best(lambda: pandas_pivot_corr(ids, t, r), a.repeat)
         row(f"binned correlation ({label})", s, ours, "pandas pivot + corr", theirs)
-        if unequal and not a.no_r:
-            out = r_rows(ids, t, r, a.repeat)
+        if not unequal:
+            _, ours = best(lambda: tw.screen_structures(p, r, schedule=range(10), tolerance=0.5), 1)
+            row("screening, 7 candidates (equal)", s, ours, "-", None)
+        if not a.no_r:
+            out = r_rows(ids, t, r, a.repeat, screen=not unequal)
             row(f"variogram ({label}), R", s, out["ours"], "R outer() per subject", out["hand"])
+            if "screen" in out:
+                row("screening, 7 candidates (equal), R", s, out["screen"], "-", None)
     big = int(a.big)
     ids, t, r = data(big, True)
     p = tw.Panel(ids, t, r)
