@@ -325,7 +325,7 @@ def test_screening_three_fronts(tmp_path):
             'r <- panel_residuals(p, residuals_polynomial(1))$residuals\n'
             f's <- screen_structures(p, r, candidates = c({", ".join(repr(c) for c in cands)}))\n'
             'cat(jsonlite::toJSON(list(structure = s$fits$structure, loglik = s$fits$loglik, '
-            'parameters = unname(lapply(s$parameters, unname))), digits = NA, auto_unbox = TRUE))')
+            'parameters = unname(lapply(s$parameters, function(v) I(unname(v))))), digits = NA, auto_unbox = TRUE))')
     from_r = json.loads(rscript(code, tmp_path))
     assert from_r["structure"] == [f["structure"] for f in s.fits]
     same(from_r["loglik"], [f["loglik"] for f in s.fits], rel=R_REL_TOL)
