@@ -23,7 +23,7 @@ use rayon::prelude::*;
 use serde::Serialize;
 
 use crate::error::{Error, Result};
-use crate::grid::TimeGrid;
+use crate::grid::{BinLocator, TimeGrid};
 use crate::normal::normal_quantile;
 use crate::panel::Panel;
 use crate::ranking::check_residuals;
@@ -134,8 +134,17 @@ impl CorrelationMoments {
                 let mut m = CorrelationMoments::new(k);
                 let mut chosen: Vec<Option<(f64, f64)>> = vec![None; k];
                 let mut present: Vec<(usize, f64)> = Vec::with_capacity(k);
+                let locator = BinLocator::new(grid);
                 for i in first..(first + block).min(s) {
-                    m.add_subject(panel, residuals, grid, i, &mut chosen, &mut present);
+                    m.add_subject(
+                        panel,
+                        residuals,
+                        &locator,
+                        grid,
+                        i,
+                        &mut chosen,
+                        &mut present,
+                    );
                 }
                 m
             })
@@ -147,10 +156,12 @@ impl CorrelationMoments {
         Ok(total)
     }
 
+    #[allow(clippy::too_many_arguments)] // per-block scratch passed in to avoid allocations
     fn add_subject(
         &mut self,
         panel: &Panel,
         residuals: &[f64],
+        locator: &BinLocator<'_>,
         grid: &TimeGrid,
         i: usize,
         chosen: &mut [Option<(f64, f64)>],
@@ -159,7 +170,7 @@ impl CorrelationMoments {
         let t = panel.time();
         chosen.iter_mut().for_each(|c| *c = None);
         for row in panel.subject_rows(i) {
-            let Some(b) = grid.bin_of(t[row]) else {
+            let Some(b) = locator.locate(t[row]) else {
                 self.visits_outside += 1;
                 continue;
             };

@@ -267,6 +267,93 @@ impl TimeGrid {
     }
 }
 
+/// [`TimeGrid::bin_of`] for many times: built once per grid, it finds the bin of equally spaced
+/// edges or nominal times by arithmetic, then settles the exact answer against the grid's own
+/// values, so it always agrees with `bin_of`.
+#[derive(Debug, Clone)]
+pub struct BinLocator<'a> {
+    grid: &'a TimeGrid,
+    /// (first value, 1 / spacing) when the edges or nominal times are equally spaced.
+    uniform: Option<(f64, f64)>,
+}
+
+impl<'a> BinLocator<'a> {
+    /// A locator for `grid`.
+    pub fn new(grid: &'a TimeGrid) -> BinLocator<'a> {
+        let values = match grid {
+            TimeGrid::Edges { edges } => edges,
+            TimeGrid::Schedule { times, .. } => times,
+        };
+        let uniform = if values.len() >= 2 {
+            let (first, last) = (values[0], values[values.len() - 1]);
+            let step = (last - first) / (values.len() - 1) as f64;
+            let even = values
+                .iter()
+                .enumerate()
+                .all(|(i, &v)| (v - (first + i as f64 * step)).abs() <= 1e-9 * step);
+            even.then_some((first, 1.0 / step))
+        } else {
+            None
+        };
+        BinLocator { grid, uniform }
+    }
+
+    /// The number of `values` below `t` (as `partition_point(|v| v < t)`), or at most `t` when
+    /// `inclusive`, from an arithmetic guess walked to the exact place.
+    #[inline]
+    fn count_below(&self, values: &[f64], t: f64, inclusive: bool) -> usize {
+        let below = |v: f64| if inclusive { v <= t } else { v < t };
+        let Some((first, inv)) = self.uniform else {
+            return values.partition_point(|&v| below(v));
+        };
+        // Truncation, not floor (a library call on some targets): the walk below fixes it.
+        let guess = (t - first) * inv;
+        let mut i = if guess < 0.0 {
+            0
+        } else {
+            ((guess as usize).saturating_add(1)).min(values.len())
+        };
+        while i > 0 && !below(values[i - 1]) {
+            i -= 1;
+        }
+        while i < values.len() && below(values[i]) {
+            i += 1;
+        }
+        i
+    }
+
+    /// The bin holding time `t`, if any: the same as [`TimeGrid::bin_of`].
+    #[inline]
+    pub fn locate(&self, t: f64) -> Option<usize> {
+        match self.grid {
+            TimeGrid::Edges { edges } => {
+                let k = edges.len() - 1;
+                if t < edges[0] || t > edges[k] || t.is_nan() {
+                    return None;
+                }
+                let i = self.count_below(edges, t, true);
+                Some((i - 1).min(k - 1))
+            }
+            TimeGrid::Schedule { times, tolerance } => {
+                if t.is_nan() {
+                    return None;
+                }
+                let i = self.count_below(times, t, false);
+                let mut best: Option<(usize, f64)> = None;
+                for j in [i.wrapping_sub(1), i] {
+                    if let Some(&s) = times.get(j) {
+                        let d = (t - s).abs();
+                        if d <= *tolerance && best.is_none_or(|(_, bd)| d < bd) {
+                            best = Some((j, d));
+                        }
+                    }
+                }
+                best.map(|(j, _)| j)
+            }
+        }
+    }
+}
+
 fn check_increasing(argument: &str, v: &[f64]) -> Result<()> {
     if let Some(x) = v.iter().find(|x| !x.is_finite()) {
         return Err(Error::option(argument, x, "every value must be finite"));
@@ -279,4 +366,40 @@ fn check_increasing(argument: &str, v: &[f64]) -> Result<()> {
         ));
     }
     Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::{BinLocator, TimeGrid};
+
+    #[test]
+    fn locator_agrees_with_bin_of() {
+        let grids = [
+            TimeGrid::equal_width(0.0, 8.0, 16).unwrap(),
+            TimeGrid::edges(vec![0.0, 0.5, 2.0, 2.1, 7.0]).unwrap(),
+            TimeGrid::schedule((0..10).map(f64::from).collect(), 0.5).unwrap(),
+            TimeGrid::schedule(vec![0.0, 0.3, 1.0, 4.0], 0.2).unwrap(),
+            TimeGrid::schedule(vec![0.1, 0.2, 0.3], 0.05).unwrap(),
+        ];
+        let mut rng = crate::rng::Rng::new(4, 0);
+        for g in &grids {
+            let loc = BinLocator::new(g);
+            // Random times and every grid value with its neighbours (ties, edges, window ends).
+            let mut ts: Vec<f64> = (0..5000).map(|_| 12.0 * rng.uniform() - 2.0).collect();
+            let values = match g {
+                TimeGrid::Edges { edges } => edges.clone(),
+                TimeGrid::Schedule { times, tolerance } => times
+                    .iter()
+                    .flat_map(|s| [*s, s - tolerance, s + tolerance])
+                    .collect(),
+            };
+            for v in values {
+                ts.extend([v, f64::from_bits(v.to_bits() + 1), v - 1e-15, v + 1e-15]);
+            }
+            ts.push(f64::NAN);
+            for t in ts {
+                assert_eq!(loc.locate(t), g.bin_of(t), "t = {t} on {g:?}");
+            }
+        }
+    }
 }
