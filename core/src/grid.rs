@@ -224,17 +224,7 @@ impl TimeGrid {
                 Some((i - 1).min(k - 1))
             }
             TimeGrid::Schedule { times, tolerance } => {
-                let i = times.partition_point(|&s| s < t);
-                let mut best: Option<(usize, f64)> = None;
-                for j in [i.wrapping_sub(1), i] {
-                    if let Some(&s) = times.get(j) {
-                        let d = (t - s).abs();
-                        if d <= *tolerance && best.is_none_or(|(_, bd)| d < bd) {
-                            best = Some((j, d));
-                        }
-                    }
-                }
-                best.map(|(j, _)| j)
+                nearest_within(times, *tolerance, times.partition_point(|&s| s < t), t)
             }
         }
     }
@@ -338,20 +328,25 @@ impl<'a> BinLocator<'a> {
                 if t.is_nan() {
                     return None;
                 }
-                let i = self.count_below(times, t, false);
-                let mut best: Option<(usize, f64)> = None;
-                for j in [i.wrapping_sub(1), i] {
-                    if let Some(&s) = times.get(j) {
-                        let d = (t - s).abs();
-                        if d <= *tolerance && best.is_none_or(|(_, bd)| d < bd) {
-                            best = Some((j, d));
-                        }
-                    }
-                }
-                best.map(|(j, _)| j)
+                nearest_within(times, *tolerance, self.count_below(times, t, false), t)
             }
         }
     }
+}
+
+/// Of the nominal times just below and at position `i` (the count of times below `t`), the
+/// nearer one within `tolerance` of `t`, the earlier on a tie.
+fn nearest_within(times: &[f64], tolerance: f64, i: usize, t: f64) -> Option<usize> {
+    let mut best: Option<(usize, f64)> = None;
+    for j in [i.wrapping_sub(1), i] {
+        if let Some(&s) = times.get(j) {
+            let d = (t - s).abs();
+            if d <= tolerance && best.is_none_or(|(_, bd)| d < bd) {
+                best = Some((j, d));
+            }
+        }
+    }
+    best.map(|(j, _)| j)
 }
 
 fn check_increasing(argument: &str, v: &[f64]) -> Result<()> {
