@@ -179,6 +179,9 @@ pub(crate) fn serial(data: Data<'_>, kind: Serial, mo: &Moments, c: Control) -> 
     }
 }
 
+/// Largest |logit| of a variance share in the intercept + exponential + error fit.
+const LOGIT_CAP: f64 = 30.0;
+
 /// Weights (nu, serial, error) = softmax(a, b, 0).
 fn weights(x: &[f64]) -> (f64, f64, f64) {
     let top = x[0].max(x[1]).max(0.0);
@@ -196,8 +199,21 @@ pub(crate) fn intercept_exponential_error(
     c: Control,
 ) -> Fitted {
     let n = data.n_obs();
+    let (lo, hi) = mo.log_range_bounds();
+    // The range is kept in the searched interval and the share logits within +-LOGIT_CAP
+    // (a share of about 1e-13): beyond them the likelihood is flat, so Nelder-Mead stops
+    // instead of walking along a ridge (e.g. a range growing without bound when the serial
+    // part acts as a second random intercept).
+    let clamp = |x: &[f64]| -> [f64; 3] {
+        [
+            x[0].clamp(-LOGIT_CAP, LOGIT_CAP),
+            x[1].clamp(-LOGIT_CAP, LOGIT_CAP),
+            x[2].clamp(lo, hi),
+        ]
+    };
     let shape = |x: &[f64]| {
-        let (w_nu, w_s, w_tau) = weights(x);
+        let x = clamp(x);
+        let (w_nu, w_s, w_tau) = weights(&x);
         Shape {
             serial: Serial::Exponential,
             phi: x[2].exp(),
@@ -215,9 +231,8 @@ pub(crate) fn intercept_exponential_error(
             None => f64::INFINITY,
         }
     };
-    let (lo, hi) = mo.log_range_bounds();
     let mut starts = Vec::new();
-    for u in [range_start.ln(), 0.5 * (lo + hi)] {
+    for u in [range_start.ln().clamp(lo, hi), 0.5 * (lo + hi)] {
         // (nu, serial, error) shares 1/3 each, or 0.6 for one of them and 0.2 for the others.
         for (a, b) in [
             (0.0, 0.0),
@@ -255,13 +270,21 @@ pub(crate) fn intercept_exponential_error(
         return Fitted::singular(4, evals, "not positive definite at the optimum");
     };
     let (l, scale) = profiled(n, ld, q);
-    let (w_nu, w_s, w_tau) = weights(&m.x);
+    let x = clamp(&m.x);
+    let (w_nu, w_s, w_tau) = weights(&x);
+    let at_edge = x[2] <= lo || x[2] >= hi;
     Fitted {
-        parameters: vec![scale * w_nu, scale * w_s, m.x[2].exp(), scale * w_tau],
+        parameters: vec![scale * w_nu, scale * w_s, x[2].exp(), scale * w_tau],
         loglik: l,
         iterations: first.iterations + second.iterations,
         converged: second.converged,
-        note: None,
+        note: at_edge.then(|| {
+            format!(
+                "range at the edge of the searched interval [{:.3e}, {:.3e}]",
+                lo.exp(),
+                hi.exp()
+            )
+        }),
     }
 }
 
