@@ -77,6 +77,7 @@ pub(crate) fn build(ctx: &Context, progress: &mut dyn FnMut(&str)) -> Result<Sec
                     plot(&title, ctx, &g, &format!("{name} = ")),
                     format!("One curve per value of {name}."),
                 ));
+                text.push_str(&paragraph(&format!("Groups by {name}:")));
                 text.push_str(&table(&header, &rows(&g)));
                 numbers.push(value(&strip(&g)));
             }
