@@ -171,7 +171,8 @@ pub fn line(name: &str, x: &[f64], y: &[f64], i: usize) -> Layer {
         y: y.to_vec(),
         colour: palette::series(i).into(),
         width: 2.0,
-        dashed: false,
+        // Past the palette's seven colours, series repeat a colour dashed.
+        dashed: i >= palette::SERIES.len(),
     }
 }
 
@@ -566,18 +567,35 @@ fn legend(s: &mut Svg, layers: &[Layer], x: f64, y: f64) {
         } else {
             "1"
         };
-        let v = [num(x), num(cy - 5.0)];
-        s.leaf(
-            "rect",
-            &[
-                ("x", &v[0]),
-                ("y", &v[1]),
-                ("width", "14"),
-                ("height", "10"),
-                ("fill", &swatch),
-                ("fill-opacity", opacity),
-            ],
-        );
+        if let Layer::Line { dashed, .. } = layer {
+            // A line swatch, so dashed series are told apart from solid ones.
+            let v = [num(x), num(x + 14.0), num(cy)];
+            let mut attrs = vec![
+                ("x1", v[0].as_str()),
+                ("x2", v[1].as_str()),
+                ("y1", v[2].as_str()),
+                ("y2", v[2].as_str()),
+                ("stroke", swatch.as_str()),
+                ("stroke-width", "3"),
+            ];
+            if *dashed {
+                attrs.push(("stroke-dasharray", "4 2"));
+            }
+            s.leaf("line", &attrs);
+        } else {
+            let v = [num(x), num(cy - 5.0)];
+            s.leaf(
+                "rect",
+                &[
+                    ("x", &v[0]),
+                    ("y", &v[1]),
+                    ("width", "14"),
+                    ("height", "10"),
+                    ("fill", &swatch),
+                    ("fill-opacity", opacity),
+                ],
+            );
+        }
         for (j, part) in wrap(layer.name(), 26).iter().enumerate() {
             s.text(x + 20.0, cy + 4.0 + j as f64 * 13.0, &[], part);
             row += if j > 0 { 13.0 / 18.0 } else { 0.0 };
