@@ -525,6 +525,18 @@ pub fn variogram_sums(
     })
 }
 
+/// Refuses to return every pair when there are more than [`PAIR_LIMIT`].
+fn check_all_pairs(pairs: u64) -> Result<()> {
+    if pairs > PAIR_LIMIT {
+        return Err(Error::option(
+            "sample",
+            format!("\"all\" ({pairs} pairs)"),
+            &format!("at most {PAIR_LIMIT} pairs: ask for a sample count instead"),
+        ));
+    }
+    Ok(())
+}
+
 /// The process variance alone: the mean of (r_j - r_k)^2 / 2 over all pairs of rows of
 /// different subjects, in O(n) (see [`ProcessSums`]).
 ///
@@ -594,14 +606,10 @@ pub fn variogram(
             Some(m),
             options.seed,
         )),
-        SampleSize::All if vg.pairs_in_bins > PAIR_LIMIT => {
-            return Err(Error::option(
-                "sample",
-                format!("\"all\" ({} pairs)", vg.pairs_in_bins),
-                &format!("at most {PAIR_LIMIT} pairs: ask for a sample count instead"),
-            ))
+        SampleSize::All => {
+            check_all_pairs(vg.pairs_in_bins)?;
+            Some(pairs::sample_pairs(panel, residuals, lo, hi, None, 0))
         }
-        SampleSize::All => Some(pairs::sample_pairs(panel, residuals, lo, hi, None, 0)),
     };
     if let Some(smoother) = &options.smoother {
         let own;
@@ -618,4 +626,17 @@ pub fn variogram(
     }
     vg.sample = sample;
     Ok(vg)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::{check_all_pairs, PAIR_LIMIT};
+
+    #[test]
+    fn all_pairs_refused_above_the_limit() {
+        assert!(check_all_pairs(PAIR_LIMIT).is_ok());
+        let e = check_all_pairs(PAIR_LIMIT + 1).unwrap_err();
+        assert_eq!(e.argument(), Some("sample"));
+        assert!(e.to_string().contains("ask for a sample count"));
+    }
 }
