@@ -288,11 +288,11 @@ impl<'a> BinLocator<'a> {
         BinLocator { grid, uniform }
     }
 
-    /// The number of `values` below `t` (as `partition_point(|v| v < t)`), or at most `t` when
-    /// `inclusive`, from an arithmetic guess walked to the exact place.
+    /// The number of `values` below `t` (as `partition_point(|v| v < t)`), from an arithmetic
+    /// guess walked to the exact place.
     #[inline]
-    fn count_below(&self, values: &[f64], t: f64, inclusive: bool) -> usize {
-        let below = |v: f64| if inclusive { v <= t } else { v < t };
+    fn count_below(&self, values: &[f64], t: f64) -> usize {
+        let below = |v: f64| v < t;
         let Some((first, inv)) = self.uniform else {
             return values.partition_point(|&v| below(v));
         };
@@ -318,17 +318,29 @@ impl<'a> BinLocator<'a> {
         match self.grid {
             TimeGrid::Edges { edges } => {
                 let k = edges.len() - 1;
-                if t < edges[0] || t > edges[k] || t.is_nan() {
+                // Also refuses NaN.
+                if !(t >= edges[0] && t <= edges[k]) {
                     return None;
                 }
-                let i = self.count_below(edges, t, true);
-                Some((i - 1).min(k - 1))
+                let Some((first, inv)) = self.uniform else {
+                    return Some((edges.partition_point(|&e| e <= t) - 1).min(k - 1));
+                };
+                // The arithmetic guess, walked to the bin with edges[b] <= t < edges[b + 1]
+                // (the last bin also takes its upper edge), as bin_of defines it.
+                let mut b = (((t - first) * inv) as usize).min(k - 1);
+                while b > 0 && t < edges[b] {
+                    b -= 1;
+                }
+                while b + 1 < k && t >= edges[b + 1] {
+                    b += 1;
+                }
+                Some(b)
             }
             TimeGrid::Schedule { times, tolerance } => {
                 if t.is_nan() {
                     return None;
                 }
-                nearest_within(times, *tolerance, self.count_below(times, t, false), t)
+                nearest_within(times, *tolerance, self.count_below(times, t), t)
             }
         }
     }
