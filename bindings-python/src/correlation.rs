@@ -4,10 +4,14 @@
 //! copy from `residuals()`.
 
 use pyo3::prelude::*;
-use trajweave_core::correlation::{binned_correlation, CorrelationOptions};
-use trajweave_core::screen::{screen_structures, structure_loglik, ScreenOptions, Structure};
-use trajweave_core::variogram::fit::{fit_variogram, Estimate, VariogramModel};
-use trajweave_core::variogram::{process_variance, variogram, Variogram, VariogramOptions};
+use trajweave_core::correlation::binned::{binned_correlation, CorrelationOptions};
+use trajweave_core::correlation::screen::{
+    screen_structures, structure_loglik, ScreenOptions, Structure,
+};
+use trajweave_core::correlation::variogram::fit::{fit_variogram, Estimate, VariogramModel};
+use trajweave_core::correlation::variogram::{
+    process_variance, variogram, Variogram, VariogramOptions,
+};
 use trajweave_core::TimeGrid;
 
 use crate::errors::IntoPy;

@@ -4,10 +4,10 @@
 use numpy::{IntoPyArray, PyArray1, PyReadonlyArray1};
 use pyo3::prelude::*;
 use pyo3::types::PyList;
-use trajweave_core::bands::{covariate_bands, equal_count_bands, Band, Bands};
-use trajweave_core::conditional::conditional_trends;
-use trajweave_core::groups::{dropout_curves, group_curves};
-use trajweave_core::trajectory_grid::trajectory_grid;
+use trajweave_core::covariates::bands::{covariate_bands, equal_count_bands, Band, Bands};
+use trajweave_core::covariates::conditional::conditional_trends;
+use trajweave_core::covariates::groups::{dropout_curves, group_curves};
+use trajweave_core::individuals::trajectory_grid::trajectory_grid;
 use trajweave_core::TimeGrid;
 
 use crate::errors::IntoPy;

@@ -7,11 +7,11 @@ use std::borrow::Cow;
 use numpy::{IntoPyArray, PyArray1, PyReadonlyArray1};
 use pyo3::prelude::*;
 use pyo3::types::PyList;
-use trajweave_core::curve::{Curve, Diagnostics};
-use trajweave_core::ranking::{pick_subjects, rank_subjects, Ranking, Summary};
-use trajweave_core::residuals::{residuals, MeanModel};
-use trajweave_core::sample::{sample_subjects, Strategy};
-use trajweave_core::unusual::unusual;
+use trajweave_core::individuals::ranking::{pick_subjects, rank_subjects, Ranking, Summary};
+use trajweave_core::individuals::residuals::{residuals, MeanModel};
+use trajweave_core::individuals::sample::{sample_subjects, Strategy};
+use trajweave_core::individuals::unusual::unusual;
+use trajweave_core::trend::curve::{Curve, Diagnostics};
 
 use crate::errors::IntoPy;
 use crate::panel::{id_list, NativePanel};

@@ -4,7 +4,7 @@ use numpy::IntoPyArray;
 use numpy::PyReadonlyArray1;
 use pyo3::prelude::*;
 use pyo3::types::PyDict;
-use trajweave_core::mean_curve::{mean_curve, BootstrapOptions};
+use trajweave_core::trend::mean_curve::{mean_curve, BootstrapOptions};
 
 use crate::errors::IntoPy;
 use crate::panel::NativePanel;

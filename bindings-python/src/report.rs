@@ -1,7 +1,7 @@
 //! The report: the same renderer as the CLI's `report`; Python writes the files.
 
 use pyo3::prelude::*;
-use trajweave_core::report::{build_report, ReportColumns, ReportOptions, ReportValue};
+use trajweave_report::{build_report, ReportColumns, ReportOptions, ReportValue};
 
 use crate::errors::IntoPy;
 use crate::panel::NativePanel;

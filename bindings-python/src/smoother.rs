@@ -2,8 +2,8 @@
 
 use numpy::{IntoPyArray, PyArray1, PyReadonlyArray1};
 use pyo3::prelude::*;
-use trajweave_core::curve::{Curve, Diagnostics, OptionValue};
-use trajweave_core::smoother::Smoother;
+use trajweave_core::trend::curve::{Curve, Diagnostics, OptionValue};
+use trajweave_core::trend::smoother::Smoother;
 
 use crate::errors::IntoPy;
 

@@ -1,7 +1,7 @@
 //! `tune_smoother`: cross-validation over subjects, as JSON.
 
 use pyo3::prelude::*;
-use trajweave_core::tune::tune_smoother;
+use trajweave_core::trend::tune::tune_smoother;
 
 use crate::errors::IntoPy;
 use crate::panel::NativePanel;

@@ -2,11 +2,11 @@
 //! from a mean model and candidate covariance structures, as JSON.
 
 use clap::Args;
-use trajweave_core::correlation::{binned_correlation, CorrelationOptions};
-use trajweave_core::screen::{screen_structures, ScreenOptions};
-use trajweave_core::smoother::Smoother;
-use trajweave_core::variogram::fit::{fit_variogram, Estimate, VariogramModel};
-use trajweave_core::variogram::{variogram, VariogramOptions};
+use trajweave_core::correlation::binned::{binned_correlation, CorrelationOptions};
+use trajweave_core::correlation::screen::{screen_structures, ScreenOptions};
+use trajweave_core::correlation::variogram::fit::{fit_variogram, Estimate, VariogramModel};
+use trajweave_core::correlation::variogram::{variogram, VariogramOptions};
+use trajweave_core::trend::smoother::Smoother;
 use trajweave_core::TimeGrid;
 
 use crate::error::CliError;

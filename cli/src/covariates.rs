@@ -3,10 +3,10 @@
 //! `trajweave grid` (the subjects x time-bins matrix for a heat map), as JSON.
 
 use clap::Args;
-use trajweave_core::bands::covariate_bands;
-use trajweave_core::conditional::conditional_trends;
-use trajweave_core::groups::{dropout_curves, group_curves};
-use trajweave_core::trajectory_grid::trajectory_grid;
+use trajweave_core::covariates::bands::covariate_bands;
+use trajweave_core::covariates::conditional::conditional_trends;
+use trajweave_core::covariates::groups::{dropout_curves, group_curves};
+use trajweave_core::individuals::trajectory_grid::trajectory_grid;
 use trajweave_core::TimeGrid;
 
 use crate::error::CliError;

@@ -3,11 +3,11 @@
 //! optionally the per-row residuals as CSV in the file's row order.
 
 use clap::Args;
-use trajweave_core::mean_curve::mean_curve;
-use trajweave_core::ranking::{pick_subjects, rank_subjects, Summary};
-use trajweave_core::residuals::{residuals, MeanModel, Residuals};
-use trajweave_core::sample::{sample_subjects, Strategy};
-use trajweave_core::unusual::unusual;
+use trajweave_core::individuals::ranking::{pick_subjects, rank_subjects, Summary};
+use trajweave_core::individuals::residuals::{residuals, MeanModel, Residuals};
+use trajweave_core::individuals::sample::{sample_subjects, Strategy};
+use trajweave_core::individuals::unusual::unusual;
+use trajweave_core::trend::mean_curve::mean_curve;
 use trajweave_core::Panel;
 
 use crate::error::CliError;

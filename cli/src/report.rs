@@ -7,8 +7,8 @@ use std::sync::{Arc, Mutex};
 use std::time::{Duration, Instant};
 
 use clap::Args;
-use trajweave_core::report::{build_report, ReportColumns, ReportOptions, ReportValue};
 use trajweave_core::Missing;
+use trajweave_report::{build_report, ReportColumns, ReportOptions, ReportValue};
 
 use crate::error::CliError;
 use crate::table::{read_panel, read_panel_from, Columns};

@@ -4,10 +4,10 @@
 use std::fmt::Write as _;
 
 use clap::Args;
-use trajweave_core::curve::OptionValue;
-use trajweave_core::mean_curve::{mean_curve, BootstrapOptions};
-use trajweave_core::smoother::Smoother;
-use trajweave_core::tune::tune_smoother;
+use trajweave_core::trend::curve::OptionValue;
+use trajweave_core::trend::mean_curve::{mean_curve, BootstrapOptions};
+use trajweave_core::trend::smoother::Smoother;
+use trajweave_core::trend::tune::tune_smoother;
 
 use crate::error::CliError;
 use crate::{json, write_out, Format, PanelArgs};

@@ -5,10 +5,10 @@
 //! `cargo bench -p trajweave-core --bench correlation` (also run by `make bench`).
 
 use criterion::{criterion_group, criterion_main, BenchmarkId, Criterion};
-use trajweave_core::correlation::{binned_correlation, CorrelationOptions};
-use trajweave_core::rng::Rng;
-use trajweave_core::screen::{screen_structures, ScreenOptions, Structure};
-use trajweave_core::variogram::{process_variance, variogram, VariogramOptions};
+use trajweave_core::correlation::binned::{binned_correlation, CorrelationOptions};
+use trajweave_core::correlation::screen::{screen_structures, ScreenOptions, Structure};
+use trajweave_core::correlation::variogram::{process_variance, variogram, VariogramOptions};
+use trajweave_core::numeric::rng::Rng;
 use trajweave_core::{Missing, Panel, SubjectIds, TimeGrid};
 
 fn panel(subjects: usize) -> Panel {

@@ -4,9 +4,9 @@
 //! `cargo bench -p trajweave-core --bench smoothers`.
 
 use criterion::{criterion_group, criterion_main, BenchmarkId, Criterion};
-use trajweave_core::kernel::{kernel_smooth, KernelOptions, KernelShape};
-use trajweave_core::rng::Rng;
-use trajweave_core::smoother::Smoother;
+use trajweave_core::numeric::rng::Rng;
+use trajweave_core::trend::kernel::{kernel_smooth, KernelOptions, KernelShape};
+use trajweave_core::trend::smoother::Smoother;
 
 fn data(n: usize) -> (Vec<f64>, Vec<f64>) {
     let mut r = Rng::new(1, 0);

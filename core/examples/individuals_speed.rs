@@ -4,9 +4,9 @@
 
 use std::time::Instant;
 
-use trajweave_core::ranking::{pick_subjects, rank_subjects, Summary};
-use trajweave_core::residuals::{residuals, MeanModel};
-use trajweave_core::rng::Rng;
+use trajweave_core::individuals::ranking::{pick_subjects, rank_subjects, Summary};
+use trajweave_core::individuals::residuals::{residuals, MeanModel};
+use trajweave_core::numeric::rng::Rng;
 use trajweave_core::{Missing, Panel, SubjectIds};
 
 fn main() -> trajweave_core::Result<()> {

@@ -10,7 +10,7 @@
 
 use std::time::Instant;
 
-use trajweave_core::screen::{screen_structures, ScreenOptions};
+use trajweave_core::correlation::screen::{screen_structures, ScreenOptions};
 use trajweave_core::{simulate, SimulateOptions, TimeGrid};
 
 fn main() -> trajweave_core::Result<()> {

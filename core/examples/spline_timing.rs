@@ -1,7 +1,7 @@
 //! Timing printout for the smoothing spline (not a benchmark harness, not asserted):
 //! `cargo run --release -p trajweave-core --example spline_timing -- 100000 1000000`
 use std::time::Instant;
-use trajweave_core::spline::{
+use trajweave_core::trend::spline::{
     smoothing_spline, smoothing_spline_with_leverages, Penalty, SplineOptions,
 };
 

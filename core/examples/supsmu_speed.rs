@@ -8,7 +8,7 @@
 
 use std::time::Instant;
 
-use trajweave_core::rng::Rng;
+use trajweave_core::numeric::rng::Rng;
 use trajweave_core::{super_smoother, SuperSmootherOptions};
 
 fn main() -> Result<(), Box<dyn std::error::Error>> {

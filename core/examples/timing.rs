@@ -1,8 +1,8 @@
 //! Quick breakdown of where a smoother's time goes (not a benchmark; see benches/).
 use std::time::Instant;
-use trajweave_core::curve::sort_by_x;
-use trajweave_core::kernel::{kernel_smooth, KernelOptions, KernelShape};
-use trajweave_core::rng::Rng;
+use trajweave_core::numeric::rng::Rng;
+use trajweave_core::trend::curve::sort_by_x;
+use trajweave_core::trend::kernel::{kernel_smooth, KernelOptions, KernelShape};
 
 fn main() {
     let n: usize = std::env::args()

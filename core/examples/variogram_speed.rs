@@ -3,9 +3,9 @@
 
 use std::time::Instant;
 
-use trajweave_core::correlation::{binned_correlation, CorrelationOptions};
-use trajweave_core::rng::Rng;
-use trajweave_core::variogram::{variogram, VariogramOptions};
+use trajweave_core::correlation::binned::{binned_correlation, CorrelationOptions};
+use trajweave_core::correlation::variogram::{variogram, VariogramOptions};
+use trajweave_core::numeric::rng::Rng;
 use trajweave_core::{Missing, Panel, SubjectIds, TimeGrid};
 
 fn main() -> trajweave_core::Result<()> {

@@ -154,7 +154,9 @@ impl Error {
         }
     }
 
-    pub(crate) fn option(argument: &str, value: impl std::fmt::Display, allowed: &str) -> Self {
+    /// An [`Error::InvalidOption`]: `argument` was given `value`, which is not `allowed`.
+    /// Public so the report crate words its option errors as core does.
+    pub fn option(argument: &str, value: impl std::fmt::Display, allowed: &str) -> Self {
         Error::InvalidOption {
             argument: argument.to_string(),
             value: value.to_string(),

@@ -1,7 +1,11 @@
 //! trajweave-core: estimators for exploring longitudinal (repeated-measures) data.
 //!
 //! Build a [`Panel`] once (validated, sorted by subject and time, the caller's row order kept),
-//! then run estimators on it. Nothing here parses files or touches Python or R types; the CLI
+//! then run estimators on it. The modules follow the questions of an exploration: [`data`]
+//! (what the data hold), [`trend`] (the mean trend), [`individuals`] (how individuals vary),
+//! [`covariates`] (whether a covariate changes the trend), [`correlation`] (how residuals are
+//! correlated), with [`numeric`] the shared numerical tools. Nothing here parses files, writes
+//! HTML or touches Python or R types; the report is the crate `trajweave-report`, and the CLI
 //! and the bindings convert at their edges and call these functions, so every front gives the
 //! same numbers and the same errors.
 //!
@@ -15,41 +19,17 @@
 //! ```
 #![deny(missing_docs)]
 
-pub mod bands;
-pub mod conditional;
 pub mod correlation;
-pub mod curve;
-pub mod describe;
+pub mod covariates;
+pub mod data;
 pub mod error;
-pub mod grid;
-pub mod groups;
-pub mod kernel;
-pub mod lowess;
-pub mod mean_curve;
-pub mod normal;
-mod optimize;
-pub mod panel;
-pub mod quantile;
-pub mod ranking;
-pub mod report;
-pub mod residuals;
-pub mod rng;
-pub mod sample;
-pub mod screen;
-pub mod simulate;
-pub mod smoother;
-pub mod spline;
-pub mod supsmu;
-pub mod trajectory_grid;
-pub mod tune;
-pub mod unusual;
-pub mod variogram;
+pub mod individuals;
+pub mod numeric;
+pub mod trend;
 
-pub use describe::{describe, Description, Pattern};
-pub use error::{Error, Result};
-pub use grid::TimeGrid;
-pub use panel::{Covariate, Missing, Panel, SubjectId, SubjectIds};
-pub use simulate::{
-    simulate, SimulateOptions, SimulatedPanel, SIMULATED_COLUMNS, SIMULATE_OPTION_NAMES,
+pub use data::{
+    describe, simulate, Covariate, Description, Missing, Panel, Pattern, SimulateOptions,
+    SimulatedPanel, SubjectId, SubjectIds, TimeGrid, SIMULATED_COLUMNS, SIMULATE_OPTION_NAMES,
 };
-pub use supsmu::{super_smoother, SuperSmootherOptions};
+pub use error::{Error, Result};
+pub use trend::supsmu::{super_smoother, SuperSmootherOptions};

@@ -5,7 +5,7 @@
 mod exact_json;
 
 use exact_json::{int, load_exact as load, nums as numbers};
-use trajweave_core::bands::{covariate_bands, equal_count_bands};
+use trajweave_core::covariates::bands::{covariate_bands, equal_count_bands};
 use trajweave_core::{Covariate, Missing, Panel, SubjectIds};
 
 #[test]

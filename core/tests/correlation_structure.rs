@@ -3,9 +3,13 @@
 //! independence. (Outside references - numpy enumeration, pandas, base R - are checked in
 //! tests/python/test_correlation.py and bindings-r/tests/testthat/test-correlation.R.)
 
-use trajweave_core::correlation::{binned_correlation, CorrelationMoments, CorrelationOptions};
-use trajweave_core::variogram::fit::{fit_variogram, Estimate, VariogramModel};
-use trajweave_core::variogram::{variogram, variogram_sums, LagBins, VariogramOptions};
+use trajweave_core::correlation::binned::{
+    binned_correlation, CorrelationMoments, CorrelationOptions,
+};
+use trajweave_core::correlation::variogram::fit::{fit_variogram, Estimate, VariogramModel};
+use trajweave_core::correlation::variogram::{
+    variogram, variogram_sums, LagBins, VariogramOptions,
+};
 use trajweave_core::{simulate, Missing, Panel, SimulateOptions, SubjectIds, TimeGrid};
 
 /// The demo scenario with no covariate effects, random slope or dropout, so the mean is
@@ -68,7 +72,7 @@ fn sums_merge_across_three_partitions_of_subjects() {
     };
     let whole = variogram_sums(&p, &r, &o).unwrap();
     // Three partitions by a scrambled subject index (not contiguous blocks).
-    let mut merged: Option<trajweave_core::variogram::VariogramSums> = None;
+    let mut merged: Option<trajweave_core::correlation::variogram::VariogramSums> = None;
     let mut moments: Option<CorrelationMoments> = None;
     let grid = TimeGrid::equal_width(0.0, 8.0, 8).unwrap();
     for k in 0..3 {

@@ -7,10 +7,10 @@ mod exact_json;
 
 use exact_json::{int, load_exact, num, nums};
 use serde_json::Value;
-use trajweave_core::bands::{Band, Bands};
-use trajweave_core::conditional::conditional_trends;
-use trajweave_core::smoother::Smoother;
-use trajweave_core::trajectory_grid::trajectory_grid;
+use trajweave_core::covariates::bands::{Band, Bands};
+use trajweave_core::covariates::conditional::conditional_trends;
+use trajweave_core::individuals::trajectory_grid::trajectory_grid;
+use trajweave_core::trend::smoother::Smoother;
 use trajweave_core::{Covariate, Missing, Panel, SubjectId, SubjectIds, TimeGrid};
 
 /// Relative agreement asked of slope, intercept and standard error with statsmodels: both are

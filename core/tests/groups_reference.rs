@@ -8,9 +8,9 @@ mod exact_json;
 
 use exact_json::{int, load_exact, nums};
 use serde_json::Value;
-use trajweave_core::groups::{dropout_curves, group_curves};
-use trajweave_core::smoother::Smoother;
-use trajweave_core::trajectory_grid::trajectory_grid;
+use trajweave_core::covariates::groups::{dropout_curves, group_curves};
+use trajweave_core::individuals::trajectory_grid::trajectory_grid;
+use trajweave_core::trend::smoother::Smoother;
 use trajweave_core::{Covariate, Missing, Panel, SubjectId, SubjectIds, TimeGrid};
 
 /// Relative agreement of a cell mean with the brute-force mean (summation order may differ).

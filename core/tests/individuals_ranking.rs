@@ -6,11 +6,11 @@
 mod common;
 
 use common::numbers;
-use trajweave_core::ranking::{pick_subjects, rank_subjects, Ranking, Summary};
-use trajweave_core::residuals::{residuals, MeanModel};
-use trajweave_core::rng::Rng;
-use trajweave_core::sample::{sample_subjects, Strategy};
-use trajweave_core::unusual::unusual;
+use trajweave_core::individuals::ranking::{pick_subjects, rank_subjects, Ranking, Summary};
+use trajweave_core::individuals::residuals::{residuals, MeanModel};
+use trajweave_core::individuals::sample::{sample_subjects, Strategy};
+use trajweave_core::individuals::unusual::unusual;
+use trajweave_core::numeric::rng::Rng;
 use trajweave_core::{simulate, Missing, Panel, SimulateOptions, SubjectId, SubjectIds};
 
 /// Summaries must agree with R's to this absolute difference (ChickWeight residuals are of

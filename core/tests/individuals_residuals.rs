@@ -8,9 +8,9 @@ mod common;
 
 use common::{number, numbers};
 use serde_json::Value;
-use trajweave_core::curve::{Curve, Diagnostics, OptionValue};
-use trajweave_core::residuals::{residuals, MeanModel};
-use trajweave_core::smoother::Smoother;
+use trajweave_core::individuals::residuals::{residuals, MeanModel};
+use trajweave_core::trend::curve::{Curve, Diagnostics, OptionValue};
+use trajweave_core::trend::smoother::Smoother;
 use trajweave_core::{Covariate, Missing, Panel, SubjectIds};
 
 /// Residuals must agree with every reference to this fraction of sd(y).

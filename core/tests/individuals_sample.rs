@@ -3,9 +3,9 @@
 //! (measured here over 50 seeds against the random strategy, the outside yardstick being the
 //! largest gap left in the quantile range by the subjects drawn).
 
-use trajweave_core::ranking::{rank_subjects, Summary};
-use trajweave_core::residuals::{residuals, MeanModel};
-use trajweave_core::sample::{sample_subjects, Strategy};
+use trajweave_core::individuals::ranking::{rank_subjects, Summary};
+use trajweave_core::individuals::residuals::{residuals, MeanModel};
+use trajweave_core::individuals::sample::{sample_subjects, Strategy};
 use trajweave_core::{simulate, Panel, SimulateOptions};
 
 /// Spread's mean largest gap must be below this fraction of random's, on each axis.

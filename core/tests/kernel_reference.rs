@@ -4,7 +4,7 @@
 
 mod common;
 
-use trajweave_core::kernel::{kernel_smooth, Evaluation, KernelOptions, KernelShape};
+use trajweave_core::trend::kernel::{kernel_smooth, Evaluation, KernelOptions, KernelShape};
 
 const TOL_SD: f64 = 1e-10;
 

@@ -13,8 +13,8 @@ mod common;
 
 use common::{number, numbers};
 use serde_json::Value;
-use trajweave_core::curve::OptionValue;
-use trajweave_core::lowess::{lowess, LowessOptions};
+use trajweave_core::trend::curve::OptionValue;
+use trajweave_core::trend::lowess::{lowess, LowessOptions};
 
 /// Against R's stats::lowess, relative to sd(y).
 const R_TOL: f64 = 1e-10;

@@ -1,10 +1,10 @@
 //! mean_curve's subject bootstrap and tune_smoother's cross-validation, checked against
 //! brute-force recomputation and closed-form cases.
 
-use trajweave_core::curve::OptionValue;
-use trajweave_core::mean_curve::{mean_curve, BootstrapOptions};
-use trajweave_core::smoother::Smoother;
-use trajweave_core::tune::tune_smoother;
+use trajweave_core::trend::curve::OptionValue;
+use trajweave_core::trend::mean_curve::{mean_curve, BootstrapOptions};
+use trajweave_core::trend::smoother::Smoother;
+use trajweave_core::trend::tune::tune_smoother;
 use trajweave_core::{simulate, Missing, Panel, SimulateOptions, SubjectIds};
 
 fn small_panel() -> Panel {

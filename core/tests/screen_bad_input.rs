@@ -2,7 +2,9 @@
 //! degenerate data (duplicated visit times) gives a -inf fit with a note, ranked last.
 //! Expected values are worked out by hand from the inputs below.
 
-use trajweave_core::screen::{screen_structures, structure_loglik, ScreenOptions, Structure};
+use trajweave_core::correlation::screen::{
+    screen_structures, structure_loglik, ScreenOptions, Structure,
+};
 use trajweave_core::{Missing, Panel, SubjectIds, TimeGrid};
 
 /// Input rows deliberately not sorted: subject 2 first.

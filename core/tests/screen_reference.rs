@@ -8,7 +8,9 @@ mod common;
 
 use common::numbers;
 use serde_json::Value;
-use trajweave_core::screen::{screen_structures, structure_loglik, ScreenOptions, Structure};
+use trajweave_core::correlation::screen::{
+    screen_structures, structure_loglik, ScreenOptions, Structure,
+};
 use trajweave_core::{Missing, Panel, SubjectIds, TimeGrid};
 
 /// |l - l_scipy| at fixed parameters, absolute (|l| is a few hundred here).

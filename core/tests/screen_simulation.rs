@@ -7,7 +7,7 @@
 //! is fitted). Then y - mean = U + W(t) + e with var U = sd_intercept^2, W stationary with
 //! variance serial_sd^2 and correlation exp(-|u| / serial_range), var e = noise_sd^2.
 
-use trajweave_core::screen::{screen_structures, ScreenOptions, Screening};
+use trajweave_core::correlation::screen::{screen_structures, ScreenOptions, Screening};
 use trajweave_core::{simulate, SimulateOptions};
 
 /// Subjects per simulated panel and the seed (fixed, so the test is deterministic).

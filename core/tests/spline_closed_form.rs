@@ -2,8 +2,8 @@
 //! weighted least-squares line as λ -> ∞, leverages against the dense hat matrix, reached df,
 //! row-order invariance and the exact bad-input messages.
 
-use trajweave_core::curve::OptionValue;
-use trajweave_core::spline::{
+use trajweave_core::trend::curve::OptionValue;
+use trajweave_core::trend::spline::{
     smoothing_spline, smoothing_spline_with_leverages, Penalty, SplineOptions,
 };
 
@@ -168,7 +168,7 @@ fn affine_change_of_y_carries_through() {
 fn bad_input_errors_are_exact() {
     let o = SplineOptions::default();
     let msg = |r: trajweave_core::Result<_>| {
-        r.map(|_: trajweave_core::curve::Curve| ())
+        r.map(|_: trajweave_core::trend::curve::Curve| ())
             .unwrap_err()
             .to_string()
     };

@@ -10,7 +10,7 @@
 mod common;
 
 use common::{number, numbers};
-use trajweave_core::spline::{
+use trajweave_core::trend::spline::{
     smoothing_spline, smoothing_spline_with_leverages, Penalty, SplineOptions,
 };
 

@@ -9,7 +9,7 @@ mod common;
 
 use common::{number, numbers};
 use serde_json::Value;
-use trajweave_core::spline::{smoothing_spline, Penalty, SplineOptions};
+use trajweave_core::trend::spline::{smoothing_spline, Penalty, SplineOptions};
 
 /// Fitted values must agree within this multiple of sd(y) (scipy; the dense solve).
 const FIT_TOL_SD: f64 = 1e-6;

@@ -5,9 +5,9 @@ mod common;
 
 use common::{number, numbers};
 use serde_json::Value;
-use trajweave_core::curve::OptionValue;
-use trajweave_core::rng::Rng;
-use trajweave_core::supsmu::{super_smoother, SuperSmootherOptions};
+use trajweave_core::numeric::rng::Rng;
+use trajweave_core::trend::curve::OptionValue;
+use trajweave_core::trend::supsmu::{super_smoother, SuperSmootherOptions};
 
 /// Fitted values must agree with R's to this fraction of sd(y).
 const R_TOL_SD: f64 = 1e-6;

@@ -5,7 +5,7 @@
 //! panic.
 
 use extendr_api::prelude::*;
-use trajweave_core::curve::OptionValue;
+use trajweave_core::trend::curve::OptionValue;
 use trajweave_core::{Panel, SubjectId};
 
 use crate::error::{invalid_option, Failure};

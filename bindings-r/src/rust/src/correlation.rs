@@ -6,7 +6,7 @@
 //! subjects or without spread).
 
 use extendr_api::prelude::*;
-use trajweave_core::correlation::{binned_correlation, CorrelationOptions};
+use trajweave_core::correlation::binned::{binned_correlation, CorrelationOptions};
 use trajweave_core::TimeGrid;
 
 use crate::convert::{

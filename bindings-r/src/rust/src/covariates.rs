@@ -8,10 +8,10 @@
 //! list, so R may keep, subset or print them in between.
 
 use extendr_api::prelude::*;
-use trajweave_core::bands::{covariate_bands, equal_count_bands, Band, Bands};
-use trajweave_core::conditional::conditional_trends;
-use trajweave_core::groups::{dropout_curves, group_curves, GroupCurves};
-use trajweave_core::trajectory_grid::trajectory_grid;
+use trajweave_core::covariates::bands::{covariate_bands, equal_count_bands, Band, Bands};
+use trajweave_core::covariates::conditional::conditional_trends;
+use trajweave_core::covariates::groups::{dropout_curves, group_curves, GroupCurves};
+use trajweave_core::individuals::trajectory_grid::trajectory_grid;
 use trajweave_core::{Error, TimeGrid};
 
 use crate::convert::{

@@ -8,10 +8,10 @@
 //! R values. Ranks and input rows count from 1 in the core already.
 
 use extendr_api::prelude::*;
-use trajweave_core::ranking::{pick_subjects, rank_subjects, Ranking, Summary};
-use trajweave_core::residuals::{residuals, MeanModel, MAX_DEGREE};
-use trajweave_core::sample::{sample_subjects, Strategy};
-use trajweave_core::unusual::unusual;
+use trajweave_core::individuals::ranking::{pick_subjects, rank_subjects, Ranking, Summary};
+use trajweave_core::individuals::residuals::{residuals, MeanModel, MAX_DEGREE};
+use trajweave_core::individuals::sample::{sample_subjects, Strategy};
+use trajweave_core::individuals::unusual::unusual;
 use trajweave_core::Panel;
 
 use crate::convert::{
@@ -152,7 +152,7 @@ fn run_rank(panel: &Robj, values: &Robj, summary: &Robj, p: &Robj) -> Outcome {
     let name = one_text(
         summary,
         "summary",
-        &format!("use {}", trajweave_core::ranking::SUMMARIES),
+        &format!("use {}", trajweave_core::individuals::ranking::SUMMARIES),
     )?;
     let p = if p.is_null() {
         None

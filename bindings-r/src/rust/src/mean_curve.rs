@@ -2,7 +2,7 @@
 //! subject-bootstrap band; grid, fit and band limits cross as double vectors.
 
 use extendr_api::prelude::*;
-use trajweave_core::mean_curve::{mean_curve, BootstrapOptions};
+use trajweave_core::trend::mean_curve::{mean_curve, BootstrapOptions};
 
 use crate::convert::{field, named_fields, named_list, one_number, optional_reals};
 use crate::error::{respond, Failure, Outcome};

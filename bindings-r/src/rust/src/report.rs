@@ -2,7 +2,7 @@
 //! files. Options come as names and a list of values: a number or numbers, a text or texts.
 
 use extendr_api::prelude::*;
-use trajweave_core::report::{build_report, ReportColumns, ReportOptions, ReportValue};
+use trajweave_report::{build_report, ReportColumns, ReportOptions, ReportValue};
 
 use crate::convert::{named_list, one_text, optional_text, strings, value_text};
 use crate::error::{invalid_option, respond, Failure, Outcome};

@@ -6,7 +6,7 @@
 //! and unstructured need is given by edges, or a schedule with a tolerance (`NULL` for none).
 
 use extendr_api::prelude::*;
-use trajweave_core::screen::{screen_structures, structure_loglik, ScreenOptions, Structure};
+use trajweave_core::correlation::screen::{screen_structures, structure_loglik, ScreenOptions, Structure};
 use trajweave_core::TimeGrid;
 
 use crate::convert::{

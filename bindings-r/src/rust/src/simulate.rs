@@ -2,7 +2,7 @@
 //! data.frame.
 
 use extendr_api::prelude::*;
-use trajweave_core::simulate::SIMULATE_OPTION_NAMES;
+use trajweave_core::data::simulate::SIMULATE_OPTION_NAMES;
 use trajweave_core::{simulate, SimulateOptions, SimulatedPanel, SIMULATED_COLUMNS};
 
 use crate::convert::{data_frame, list_values, strings, value_text};

@@ -8,8 +8,8 @@
 //! `diagnostics` go through the JSON converter.
 
 use extendr_api::prelude::*;
-use trajweave_core::curve::{Curve, Diagnostics, OptionValue};
-use trajweave_core::smoother::Smoother;
+use trajweave_core::trend::curve::{Curve, Diagnostics, OptionValue};
+use trajweave_core::trend::smoother::Smoother;
 
 use crate::convert::{
     field, named_fields, named_list, option_value, real_slice, strings, value_text,

@@ -2,7 +2,7 @@
 //! data.frame (one row per candidate) and the best index counted from 1, as R counts.
 
 use extendr_api::prelude::*;
-use trajweave_core::tune::tune_smoother;
+use trajweave_core::trend::tune::tune_smoother;
 
 use crate::convert::{data_frame, named_list, optional_text, real_slice, reals_na, whole_number};
 use crate::error::{respond, Outcome};

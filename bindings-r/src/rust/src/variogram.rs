@@ -8,8 +8,8 @@
 //! are descriptive and are not read by the fit.
 
 use extendr_api::prelude::*;
-use trajweave_core::variogram::fit::{fit_variogram, Estimate, VariogramModel};
-use trajweave_core::variogram::{
+use trajweave_core::correlation::variogram::fit::{fit_variogram, Estimate, VariogramModel};
+use trajweave_core::correlation::variogram::{
     process_variance, variogram, PairSample, Variogram, VariogramOptions,
 };
 use trajweave_core::SubjectId;

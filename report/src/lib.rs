@@ -1,0 +1,292 @@
+//! A self-contained HTML report of a panel (inline SVG figures and CSS, nothing fetched from
+//! elsewhere), with a JSON value holding every number it shows.
+//!
+//! The same function serves the CLI, Python and R: [`build_report`] takes a [`Panel`], the
+//! names of its columns (for labels), [`ReportOptions`] and a progress callback, and returns
+//! the page and the numbers; the fronts only write them to files. Nothing here reads or
+//! writes files.
+//!
+//! Parts: [`svg`] (the writer), [`scale`] (ticks), [`palette`], [`chart`] and [`heatmap`]
+//! (figures), [`html`] (page assembly), [`options`], and one builder per section in
+//! `sections/`. A new section is one more builder returning a [`Section`] and one more line
+//! in [`build_report`].
+
+pub mod chart;
+pub mod heatmap;
+pub mod html;
+pub mod options;
+pub mod palette;
+pub mod scale;
+mod sections;
+pub mod svg;
+
+use serde::Serialize;
+use serde_json::json;
+
+pub use html::{Figure, Section};
+pub use options::{ReportOptions, ReportValue, REPORT_OPTION_NAMES};
+pub use sections::individuals::{pool_rows, PooledGrid};
+
+use sections::{fmt, Context};
+use trajweave_core::data::grid::TimeGrid;
+use trajweave_core::data::panel::Panel;
+use trajweave_core::error::Result;
+
+/// Names and units of the data's columns, used only for labels.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct ReportColumns {
+    /// The subject id column.
+    pub subject: String,
+    /// The time column.
+    pub time: String,
+    /// The response column.
+    pub response: String,
+    /// Unit of time, plural (e.g. "years"); shown in axis titles and "per year".
+    pub time_unit: Option<String>,
+    /// Unit of the response (e.g. "mL/min/1.73 m2").
+    pub response_unit: Option<String>,
+    /// Where the data came from (e.g. a file name), shown in the header.
+    pub source: Option<String>,
+}
+
+impl Default for ReportColumns {
+    fn default() -> Self {
+        ReportColumns {
+            subject: "subject".into(),
+            time: "time".into(),
+            response: "response".into(),
+            time_unit: None,
+            response_unit: None,
+            source: None,
+        }
+    }
+}
+
+/// A built report.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Report {
+    /// The HTML document.
+    pub html: String,
+    /// Every number shown, by section id (`overview`, `trend`, `individuals`, `correlation`,
+    /// `variogram`, `screening`, `covariates`, `groups`), with the options and columns used and the summary text.
+    pub json: serde_json::Value,
+}
+
+impl Report {
+    /// The numbers as indented JSON text with every object's keys sorted, and a final newline:
+    /// the same bytes from every front (a front whose JSON library keeps insertion order, as
+    /// the R package's does, would otherwise order keys differently).
+    pub fn json_text(&self) -> String {
+        fn sorted(v: &serde_json::Value) -> serde_json::Value {
+            match v {
+                serde_json::Value::Object(m) => {
+                    let mut keys: Vec<&String> = m.keys().collect();
+                    keys.sort();
+                    let mut out = serde_json::Map::new();
+                    for k in keys {
+                        out.insert(k.clone(), sorted(&m[k]));
+                    }
+                    serde_json::Value::Object(out)
+                }
+                serde_json::Value::Array(a) => {
+                    serde_json::Value::Array(a.iter().map(sorted).collect())
+                }
+                other => other.clone(),
+            }
+        }
+        // Serialising a Value cannot fail (its keys are strings).
+        serde_json::to_string_pretty(&sorted(&self.json)).unwrap_or_default() + "\n"
+    }
+}
+
+/// Bins aimed at when the grid edges are chosen automatically.
+pub const AUTO_BINS: usize = 10;
+
+/// The time grid of the heat map and dropout cohorts: the given edges, or Heckbert's nice
+/// ticks spanning the time range with about [`AUTO_BINS`] bins.
+///
+/// # Examples
+/// ```
+/// use trajweave_report::{report_grid, ReportOptions};
+/// use trajweave_core::{Missing, Panel, SubjectIds};
+/// # fn main() -> trajweave_core::Result<()> {
+/// let p = Panel::new(SubjectIds::Int(vec![Some(1), Some(1)]), &[0.0, 9.3], &[1.0, 2.0], vec![], Missing::Error)?;
+/// // Heckbert's ticks for [0, 9.3] aiming at 11: step 1, so bins [0, 1), ..., [9, 10].
+/// assert_eq!(report_grid(&p, &ReportOptions::default())?.n_bins(), 10);
+/// # Ok(()) }
+/// ```
+///
+/// # Errors
+/// Those of [`TimeGrid::edges`].
+pub fn report_grid(panel: &Panel, options: &ReportOptions) -> Result<TimeGrid> {
+    match &options.grid_edges {
+        Some(e) => TimeGrid::edges(e.clone()),
+        None => {
+            let (lo, hi) = scale::extent(panel.time()).unwrap_or((0.0, 1.0));
+            TimeGrid::edges(scale::Ticks::loose(lo, hi, AUTO_BINS + 1).values)
+        }
+    }
+}
+
+/// Builds the report of `panel`.
+///
+/// `progress` is told the name of each step as it starts (for a progress bar).
+///
+/// # Examples
+/// ```
+/// use trajweave_report::{build_report, ReportColumns, ReportOptions, ReportValue};
+/// use trajweave_core::{simulate, SimulateOptions};
+/// # fn main() -> trajweave_core::Result<()> {
+/// let panel = simulate(&SimulateOptions { subjects: 60, ..Default::default() })?.to_panel()?;
+/// let mut o = ReportOptions::default();
+/// o.set("bootstrap_reps", &ReportValue::Number(20.0))?;
+/// let cols = ReportColumns { time: "years".into(), response: "egfr".into(), ..Default::default() };
+/// let mut steps = Vec::new();
+/// let r = build_report(&panel, &cols, &o, &mut |s| steps.push(s.to_string()))?;
+/// assert!(r.html.starts_with("<!DOCTYPE html>"));
+/// assert_eq!(r.json["sections"]["overview"]["subjects"], 60);
+/// assert!(steps.contains(&"describe".to_string()));
+/// # Ok(()) }
+/// ```
+///
+/// # Errors
+/// [`crate::Error::InvalidOption`] for options that do not fit together (an unknown main
+/// smoother, a "quantile" summary without `summary_p`) or grid edges refused by
+/// [`TimeGrid::edges`]; errors of the main mean curve, the residuals and the ranking (the
+/// core of the report). A covariate, group or extra smoother that cannot be fitted is not an
+/// error: the section says why it is not drawn and the JSON lists it under `skipped`.
+pub fn build_report(
+    panel: &Panel,
+    columns: &ReportColumns,
+    options: &ReportOptions,
+    progress: &mut dyn FnMut(&str),
+) -> Result<Report> {
+    let smoother = options.main_smoother()?;
+    options.ranking_summary()?;
+    options.variogram()?;
+    options.variogram_fit()?;
+    let ctx = Context {
+        panel,
+        columns,
+        options,
+        smoother,
+        grid: report_grid(panel, options)?,
+    };
+    progress("describe");
+    let (overview, description) = sections::overview::build(&ctx)?;
+    let (trend, main) = sections::trend::build(&ctx, progress)?;
+    let (individuals, flags, resid) = sections::individuals::build(&ctx, &main, progress)?;
+    // The variogram first: its fit is drawn beside the lag correlation.
+    let (variogram, fit) = sections::variogram::build(&ctx, &resid, progress)?;
+    let correlation = sections::correlation::build(&ctx, &resid, fit.as_ref(), progress);
+    let (screening, suggestion) = sections::screening::build(&ctx, &resid, progress)?;
+    let mut all = vec![
+        overview,
+        trend,
+        individuals,
+        correlation,
+        variogram,
+        screening,
+    ];
+    all.extend(sections::covariates::build(&ctx, progress)?);
+    all.push(sections::groups::build(&ctx, progress)?);
+
+    progress("assemble");
+    let per = ctx.per_time();
+    let listed: Vec<String> = flags
+        .subjects
+        .iter()
+        .take(5)
+        .map(|u| u.subject.to_string())
+        .collect();
+    let unusual_text = match flags.subjects.len() {
+        0 => "No subject's residual summary is unusual".to_string(),
+        n => format!(
+            "{n} subject{} {} an unusual residual {} (|robust z| > {}){}",
+            if n == 1 { "" } else { "s" },
+            if n == 1 { "has" } else { "have" },
+            flags_summary_name(options),
+            fmt(options.unusual_threshold),
+            if listed.is_empty() {
+                String::new()
+            } else {
+                format!(", led by {} {}", columns.subject, listed.join(", "))
+            }
+        ),
+    };
+    let structure_text = match &fit {
+        Some(f) => {
+            let s = sections::variogram::Shares::of(f);
+            format!(
+                " Of the residual variance (nu^2 + sigma^2 + tau^2 of the {} variogram fit), \
+                 {}% is between subjects (random intercept), {}% serial correlation (range {} \
+                 {}) and {}% measurement error{}.",
+                f.model.name(),
+                fmt(100.0 * s.intercept),
+                fmt(100.0 * s.serial),
+                fmt(f.range),
+                columns.time_unit.as_deref().unwrap_or("time units"),
+                fmt(100.0 * s.error),
+                match f.warnings.len() {
+                    0 => String::new(),
+                    n => format!(
+                        "; the fit gave {n} warning{} (see the variogram section)",
+                        if n == 1 { "" } else { "s" }
+                    ),
+                }
+            )
+        }
+        None => String::new(),
+    };
+    let structure_text = match &suggestion {
+        Some(s) => format!("{structure_text} Covariance screening: {s} (see that section)."),
+        None => structure_text,
+    };
+    let summary = format!(
+        "{} subjects with {} observations of {}; follow-up per subject has median {} (range \
+         {} to {}) and visits per subject median {}. The mean curve ({}) changes on average \
+         by {} {} over {} {} to {}. {}.{}",
+        description.subjects,
+        description.observations,
+        columns.response,
+        fmt(description.follow_up.median),
+        fmt(description.follow_up.min),
+        fmt(description.follow_up.max),
+        fmt(description.visits_per_subject.median),
+        options.smoother,
+        fmt(sections::trend::change_per_time(&main)),
+        per,
+        columns.time,
+        fmt(main.at.first().copied().unwrap_or(f64::NAN)),
+        fmt(main.at.last().copied().unwrap_or(f64::NAN)),
+        unusual_text,
+        structure_text,
+    );
+    let mut meta = vec![format!(
+        "Columns: subject {}, time {}, response {}",
+        columns.subject, columns.time, columns.response
+    )];
+    if let Some(src) = &columns.source {
+        meta.insert(0, format!("Data: {src}"));
+    }
+    let html = html::page(&options.title, &meta, &summary, &all);
+    let mut by_id = serde_json::Map::new();
+    for s in &all {
+        by_id.insert(s.id.clone(), s.numbers.clone());
+    }
+    let json = json!({
+        "title": options.title,
+        "columns": sections::value(columns),
+        "options": sections::value(options),
+        "summary": summary,
+        "figures": all.iter().flat_map(|s| s.figures.iter().map(|f| f.id.clone())).collect::<Vec<_>>(),
+        "sections": by_id,
+    });
+    Ok(Report { html, json })
+}
+
+fn flags_summary_name(options: &ReportOptions) -> String {
+    options
+        .ranking_summary()
+        .map_or_else(|_| options.summary.clone(), |s| s.name().to_string())
+}
