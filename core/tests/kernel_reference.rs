@@ -131,3 +131,62 @@ fn default_truncation_vs_ksmooth_differs_by_what_r_leaves_out() {
         / sd;
     assert!((1e-5..1e-3).contains(&worst), "{worst}");
 }
+
+fn box_fit_at(x: &[f64], y: &[f64], at: &[f64], h: f64) -> Vec<f64> {
+    let o = KernelOptions {
+        bandwidth: Some(h),
+        shape: KernelShape::Box,
+        degree: 0,
+        ..Default::default()
+    };
+    trajweave_core::trend::kernel::kernel_smooth_at(x, y, at, &o).unwrap()
+}
+
+fn assert_same_or_both_nan(got: &[f64], want: &[f64], what: &str) {
+    assert_eq!(got.len(), want.len(), "{what}");
+    for (k, (g, w)) in got.iter().zip(want).enumerate() {
+        // Means of at most 50 whole numbers: R's and ours agree to round-off.
+        assert!(
+            (g.is_nan() && w.is_nan()) || (g - w).abs() <= 1e-12 * w.abs().max(1.0),
+            "{what} point {k}: {g} vs {w}"
+        );
+    }
+}
+
+#[test]
+fn closed_box_matches_ksmooth_on_cars() {
+    // Reference: R's stats::ksmooth(kernel = "box") on R's `cars` (fixture section "cars"),
+    // our h = b / (2 sqrt 3), at the distinct speeds and on a grid of step 0.25.
+    let f = common::load(include_str!("../../tests/fixtures/kernel_reference.json"));
+    let cars = &f["cars"];
+    let (x, y) = (common::numbers(&cars["speed"]), common::numbers(&cars["dist"]));
+    let cases = cars["cases"].as_array().unwrap();
+    assert_eq!(cases.len(), 8);
+    for case in cases {
+        let at = common::numbers(&case["at"]);
+        let got = box_fit_at(&x, &y, &at, case["bandwidth"].as_f64().unwrap());
+        let what = format!("b {} at {}", case["r_bandwidth"], case["points"]);
+        assert_same_or_both_nan(&got, &common::numbers(&case["fitted"]), &what);
+    }
+    // R: ksmooth(cars$speed, cars$dist, "box", bandwidth = 2, x.points = 23)$y is 82.5, the
+    // mean of the six distances at speeds 22, 23 and 24 (a window closed at 23 +- 1).
+    let b = 2.0;
+    let got = box_fit_at(&x, &y, &[23.0], b / (2.0 * 3f64.sqrt()));
+    assert_eq!(got, vec![82.5]);
+}
+
+#[test]
+fn closed_box_on_decimal_grid_is_the_exact_closed_window() {
+    // Reference: numpy integer arithmetic in whole tenths (fixture section "cars.decimal"):
+    // points meant to lie on the edge count as inside, whatever their binary rounding.
+    let f = common::load(include_str!("../../tests/fixtures/kernel_reference.json"));
+    let d = &f["cars"]["decimal"];
+    let x = common::numbers(&d["x"]);
+    let y = common::numbers(&f["cars"]["dist"]);
+    for case in d["cases"].as_array().unwrap() {
+        let at = common::numbers(&case["at"]);
+        let got = box_fit_at(&x, &y, &at, case["bandwidth"].as_f64().unwrap());
+        let what = format!("b {}", case["r_bandwidth"]);
+        assert_same_or_both_nan(&got, &common::numbers(&case["fitted"]), &what);
+    }
+}

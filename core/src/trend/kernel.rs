@@ -8,11 +8,21 @@
 //! in the window) the local-constant fit is used; where no point has weight the fit is NaN.
 //!
 //! Bandwidth convention (ours, one for both shapes): **h is the standard deviation of the
-//! kernel**. The Gaussian kernel is exp(-u^2 / 2); the box kernel is flat on the open interval
-//! |x - t| < sqrt(3) h (a uniform density with standard deviation h). So a box and a Gaussian
-//! with the same h smooth about equally. R's `ksmooth(bandwidth = b)` puts the kernel's
-//! quartiles at +-b/4: its box is our box with h = b / (2 sqrt 3), its normal our Gaussian with
-//! h = 0.3706506 b, truncated at 4 of those standard deviations.
+//! kernel**. The Gaussian kernel is exp(-u^2 / 2); the box kernel is flat on the closed
+//! interval |x - t| <= a with half-width a = sqrt(3) h (a uniform density with standard
+//! deviation h). So a box and a Gaussian with the same h smooth about equally. R's
+//! `ksmooth(bandwidth = b)` puts the kernel's quartiles at +-b/4: its box is our box with
+//! h = b / (2 sqrt 3) (half-width b / 2), its normal our Gaussian with h = 0.3706506 b,
+//! truncated at 4 of those standard deviations.
+//!
+//! Box edge (the tie rule): a point at distance exactly a is inside, as in R's `ksmooth`,
+//! whose window is closed. Distances are compared with a tolerance,
+//! |x - t| <= a + 1e-9 a + 64 eps M (eps the double's machine epsilon, M the largest |x| or
+//! |t|), so a point meant to lie on the edge counts as inside whatever the binary rounding of
+//! its decimal value: on x = 0.1 k the difference 0.3 - 0.1 is 0.19999999999999998, and R's
+//! own comparison of x with t - b/2 then includes or leaves out such points depending on the
+//! rounding (measured in tests/reference/kernel_py.py); on integers and binary fractions both
+//! rules agree exactly. Two points closer than the tolerance are not told apart at the edge.
 //! Default h (common practice, no source for regression): 0.9 min(sd, IQR / 1.349) n^(-1/5) of
 //! x (Silverman's rule of thumb for densities).
 //!
@@ -44,7 +54,7 @@ use crate::trend::curve::{
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
 #[serde(rename_all = "lowercase")]
 pub enum KernelShape {
-    /// Flat on |u| < sqrt(3).
+    /// Flat on |u| <= sqrt(3) (a closed window; see the module doc for the edge rule).
     Box,
     /// exp(-u^2 / 2).
     Gaussian,
@@ -96,6 +106,10 @@ const NAMES: &str = "bandwidth, shape, degree, truncation, evaluation, bins_per_
 const SQRT3: f64 = 1.732_050_807_568_877_2;
 /// Window work above which `auto` bins a Gaussian.
 const AUTO_EXACT_WORK: f64 = 2e6;
+/// Box edge tolerance relative to the half-width (module doc).
+const BOX_EDGE_REL: f64 = 1e-9;
+/// Box edge tolerance in units of round-off of the largest |x| or |t| (module doc).
+const BOX_EDGE_ULPS: f64 = 64.0;
 
 impl KernelOptions {
     /// Sets one option by name, as the fronts pass it.
@@ -371,10 +385,22 @@ impl Sums {
     }
 }
 
-/// Box kernel on |x - t| < a, exact: the window slides over sorted x as t increases. Sums of
-/// x, x^2, y and x y are kept about the data's mid-range so the shift to each t cancels little;
-/// the count is the window's length.
+/// The half-width of the box widened by the edge tolerance of the module doc, for data `xs`
+/// (sorted) and evaluation points `at`.
+fn box_reach(xs: &[f64], at: &[f64], a: f64) -> f64 {
+    let magnitude = at
+        .iter()
+        .chain([&xs[0], &xs[xs.len() - 1]])
+        .fold(0.0f64, |m, v| m.max(v.abs()));
+    a + BOX_EDGE_REL * a + BOX_EDGE_ULPS * f64::EPSILON * magnitude
+}
+
+/// Box kernel on the closed window |x - t| <= a (with the edge tolerance of the module doc),
+/// exact: the window slides over sorted x as t increases (`at` sorted). Sums of x, x^2, y and
+/// x y are kept about the data's mid-range so the shift to each t cancels little; the count is
+/// the window's length.
 fn box_smooth(xs: &[f64], ys: &[f64], at: &[f64], a: f64, degree: u8) -> Vec<f64> {
+    let reach = box_reach(xs, at, a);
     let c = 0.5 * (xs[0] + xs[xs.len() - 1]);
     let (mut lo, mut hi) = (0usize, 0usize);
     let mut sums = Sums::default();
@@ -384,11 +410,11 @@ fn box_smooth(xs: &[f64], ys: &[f64], at: &[f64], a: f64, degree: u8) -> Vec<f64
     };
     at.iter()
         .map(|&t| {
-            while hi < xs.len() && xs[hi] - t < a {
+            while hi < xs.len() && xs[hi] - t <= reach {
                 sums.add(terms(hi, 1.0));
                 hi += 1;
             }
-            while lo < hi && t - xs[lo] >= a {
+            while lo < hi && t - xs[lo] > reach {
                 sums.add(terms(lo, -1.0));
                 lo += 1;
             }
@@ -504,7 +530,7 @@ mod tests {
             .map(|&xi| {
                 let u = (xi - t) / h;
                 match shape {
-                    KernelShape::Box => f64::from(u8::from(u.abs() < SQRT3)),
+                    KernelShape::Box => f64::from(u8::from(u.abs() <= SQRT3)),
                     KernelShape::Gaussian => (-0.5 * u * u).exp(),
                 }
             })
