@@ -159,7 +159,10 @@ fn closed_box_matches_ksmooth_on_cars() {
     // our h = b / (2 sqrt 3), at the distinct speeds and on a grid of step 0.25.
     let f = common::load(include_str!("../../tests/fixtures/kernel_reference.json"));
     let cars = &f["cars"];
-    let (x, y) = (common::numbers(&cars["speed"]), common::numbers(&cars["dist"]));
+    let (x, y) = (
+        common::numbers(&cars["speed"]),
+        common::numbers(&cars["dist"]),
+    );
     let cases = cars["cases"].as_array().unwrap();
     assert_eq!(cases.len(), 8);
     for case in cases {

@@ -54,7 +54,7 @@ fn compare(fixture: &Value, inputs: &Value, tol: impl Fn(&Value) -> f64) -> Vec<
         let (x, y) = (numbers(&data["x"]), numbers(&data["y"]));
         let options = LowessOptions {
             span: number(&case["span"]),
-            iterations: case["iterations"].as_u64().unwrap() as usize,
+            iterations: Some(case["iterations"].as_u64().unwrap() as usize),
             delta: match case.get("default_delta") {
                 Some(Value::Bool(true)) => None,
                 _ => Some(number(&case["delta"])),
@@ -147,7 +147,7 @@ fn robustness_stops_when_residual_scale_vanishes() {
         &y,
         &LowessOptions {
             span: 0.5,
-            iterations: 10,
+            iterations: Some(10),
             delta: Some(0.0),
         },
     )
@@ -250,7 +250,7 @@ fn permuting_rows_gives_the_identical_curve() {
         LowessOptions::default(),
         LowessOptions {
             span: 0.1,
-            iterations: 4,
+            iterations: Some(4),
             delta: Some(0.0),
         },
     ];
@@ -275,7 +275,7 @@ fn affine_change_of_y_carries_through() {
             LowessOptions::default(),
             LowessOptions {
                 span: 0.2,
-                iterations: 2,
+                iterations: Some(2),
                 delta: Some(0.0),
             },
         ] {

@@ -322,6 +322,22 @@ impl Panel {
         &self.response
     }
 
+    /// Whether the response holds exactly two distinct values (a binary outcome such as 0/1),
+    /// which changes LOWESS's default robustness iterations (see
+    /// [`crate::trend::lowess`]).
+    ///
+    /// # Examples
+    /// ```
+    /// use trajweave_core::{Missing, Panel, SubjectIds};
+    /// # fn main() -> trajweave_core::Result<()> {
+    /// let p = Panel::new(SubjectIds::Int(vec![Some(1), Some(1), Some(2)]), &[0.0, 1.0, 0.0], &[0.0, 1.0, 0.0], vec![], Missing::Error)?;
+    /// assert!(p.is_binary());
+    /// # Ok(()) }
+    /// ```
+    pub fn is_binary(&self) -> bool {
+        crate::trend::curve::is_binary(&self.response)
+    }
+
     /// Covariates, values in panel order.
     pub fn covariates(&self) -> &[PanelCovariate] {
         &self.covariates

@@ -32,6 +32,8 @@ pub struct Curve {
     pub settings: serde_json::Value,
     /// What the fit reports about itself.
     pub diagnostics: Diagnostics,
+    /// Warnings about the fit (empty when there are none): each front shows them as warnings.
+    pub warnings: Vec<String>,
 }
 
 /// Diagnostics of a fit; fields a smoother does not produce are `None`.
@@ -83,7 +85,14 @@ impl Curve {
             fitted,
             settings,
             diagnostics,
+            warnings: Vec::new(),
         }
+    }
+
+    /// The curve with `warnings` attached.
+    pub fn with_warnings(mut self, warnings: Vec<String>) -> Curve {
+        self.warnings = warnings;
+        self
     }
 
     /// The curve at `new_x`: linear interpolation between fitted points, the end values
@@ -243,6 +252,36 @@ fn key(x: f64) -> u64 {
 /// The inverse of [`key`].
 fn unkey(k: u64) -> f64 {
     f64::from_bits(if k & SIGN != 0 { k & !SIGN } else { !k })
+}
+
+/// Whether `y` holds exactly two distinct values (a binary response such as 0/1); NaN values
+/// are not counted. Stops at the third distinct value, so it costs O(n) at most.
+///
+/// # Examples
+/// ```
+/// use trajweave_core::trend::curve::is_binary;
+/// assert!(is_binary(&[0.0, 1.0, 1.0, 0.0]));
+/// assert!(is_binary(&[2.0, 5.0]));
+/// assert!(!is_binary(&[1.0, 1.0]));
+/// assert!(!is_binary(&[0.0, 1.0, 2.0]));
+/// ```
+pub fn is_binary(y: &[f64]) -> bool {
+    let mut values = y.iter().filter(|v| !v.is_nan());
+    let Some(&a) = values.next() else {
+        return false;
+    };
+    let mut b = None;
+    for &v in values {
+        if v == a {
+            continue;
+        }
+        match b {
+            None => b = Some(v),
+            Some(w) if w == v => {}
+            Some(_) => return false,
+        }
+    }
+    b.is_some()
 }
 
 /// Collapses sorted (x, fitted) pairs to distinct x, keeping the first fit of each tie.

@@ -195,9 +195,50 @@ fn subject_bootstrap(
     b: &BootstrapOptions,
 ) -> Result<Band> {
     b.validate()?;
+    let smoother = smoother.for_response(panel.response());
+    let reps = subject_replicates(panel, b, |t, y| {
+        smoother.fit(t, y).ok().map(|c| c.predict(at))
+    });
+    let ok: Vec<&Vec<f64>> = reps.iter().flatten().collect();
+    let failed = reps.len() - ok.len();
+    if ok.len() < 2 {
+        return Err(too_few_replicates("a bootstrap band", ok.len()));
+    }
+    let mut lower = Vec::with_capacity(at.len());
+    let mut upper = Vec::with_capacity(at.len());
+    let mut column = Vec::with_capacity(ok.len());
+    for k in 0..at.len() {
+        column.clear();
+        column.extend(ok.iter().map(|v| v[k]));
+        let (lo, hi) = percentile_interval(&mut column, b.level);
+        lower.push(lo);
+        upper.push(hi);
+    }
+    Ok(Band {
+        lower,
+        upper,
+        bootstrap: b.clone(),
+        failed,
+    })
+}
+
+/// Runs the subject bootstrap of the module doc: replicate r draws as many subjects as the
+/// panel has, uniformly with replacement, from the random stream (seed, r), and hands all
+/// their observations (times, responses) to `statistic`. Replicates run in parallel and come
+/// back in replicate order, `None` where the statistic could not be computed, so the result
+/// does not depend on the thread count.
+pub(crate) fn subject_replicates<T, F>(
+    panel: &Panel,
+    b: &BootstrapOptions,
+    statistic: F,
+) -> Vec<Option<T>>
+where
+    T: Send,
+    F: Fn(&[f64], &[f64]) -> Option<T> + Sync,
+{
     let s = panel.n_subjects();
     let (t, y) = (panel.time(), panel.response());
-    let reps: Vec<Option<Vec<f64>>> = (0..b.reps)
+    (0..b.reps)
         .into_par_iter()
         .map(|r| {
             let mut rng = Rng::new(b.seed, r as u64);
@@ -208,34 +249,26 @@ fn subject_bootstrap(
                 bx.extend_from_slice(&t[rows.clone()]);
                 by.extend_from_slice(&y[rows]);
             }
-            smoother.fit(&bx, &by).ok().map(|c| c.predict(at))
+            statistic(&bx, &by)
         })
-        .collect();
-    let ok: Vec<&Vec<f64>> = reps.iter().flatten().collect();
-    let failed = reps.len() - ok.len();
-    if ok.len() < 2 {
-        return Err(Error::TooFew {
-            what: "bootstrap replicates that could be fitted".into(),
-            estimate: "a bootstrap band".into(),
-            needed: 2,
-            found: ok.len(),
-        });
+        .collect()
+}
+
+/// The ((1 - level) / 2, (1 + level) / 2) type-7 percentiles of the replicate values, NaN
+/// values left out (`values` is reordered).
+pub(crate) fn percentile_interval(values: &mut Vec<f64>, level: f64) -> (f64, f64) {
+    values.retain(|v| !v.is_nan());
+    values.sort_unstable_by(f64::total_cmp);
+    let (p_lo, p_hi) = ((1.0 - level) / 2.0, (1.0 + level) / 2.0);
+    (quantile_sorted(values, p_lo), quantile_sorted(values, p_hi))
+}
+
+/// The error when fewer than two bootstrap replicates could be computed for `estimate`.
+pub(crate) fn too_few_replicates(estimate: &str, found: usize) -> Error {
+    Error::TooFew {
+        what: "bootstrap replicates that could be fitted".into(),
+        estimate: estimate.into(),
+        needed: 2,
+        found,
     }
-    let (p_lo, p_hi) = ((1.0 - b.level) / 2.0, (1.0 + b.level) / 2.0);
-    let mut lower = Vec::with_capacity(at.len());
-    let mut upper = Vec::with_capacity(at.len());
-    let mut column = Vec::with_capacity(ok.len());
-    for k in 0..at.len() {
-        column.clear();
-        column.extend(ok.iter().map(|v| v[k]).filter(|v| !v.is_nan()));
-        column.sort_unstable_by(f64::total_cmp);
-        lower.push(quantile_sorted(&column, p_lo));
-        upper.push(quantile_sorted(&column, p_hi));
-    }
-    Ok(Band {
-        lower,
-        upper,
-        bootstrap: b.clone(),
-        failed,
-    })
 }

@@ -1,7 +1,10 @@
 //! The mean trend: the smoothers (LOWESS, kernel, smoothing spline, super smoother), the mean
-//! curve with its subject-bootstrap band, and the choice of smoothing by subject cross-validation.
-//! In: a panel or plain (x, y) arrays. Out: a [`curve::Curve`] on a grid and at the data.
+//! curve with its subject-bootstrap band, the average change per time unit with its interval,
+//! and the choice of smoothing by subject cross-validation.
+//! In: a panel or plain (x, y) arrays. Out: a [`curve::Curve`] on a grid and at the data, or
+//! the numbers of a [`change::Change`].
 
+pub mod change;
 pub mod curve;
 pub mod kernel;
 pub mod lowess;

@@ -8,7 +8,7 @@ use crate::error::{Error, Result};
 use crate::trend::curve::{Curve, OptionValue};
 use crate::trend::kernel::{kernel_smooth, KernelOptions};
 use crate::trend::lowess::{lowess, LowessOptions};
-use crate::trend::spline::{smoothing_spline, SplineOptions};
+use crate::trend::spline::{smoothing_spline, Penalty, SplineOptions};
 use crate::trend::supsmu::{super_smoother, SuperSmootherOptions};
 
 /// A smoother family with its settings.
@@ -100,6 +100,63 @@ impl Smoother {
             Smoother::Lowess(_) | Smoother::Super(_) => "span",
             Smoother::Kernel(_) => "bandwidth",
             Smoother::Spline(_) => "df",
+        }
+    }
+
+    /// The smoother with the defaults that depend on the response fixed for response `y`:
+    /// LOWESS robustness iterations left unset become the number a fit to `y` runs (0 on a
+    /// binary response, else 3). Resampling estimators fit every replicate with this, so a
+    /// replicate that happens to hold fewer distinct responses runs the same method as the
+    /// fit to all the data.
+    ///
+    /// # Examples
+    /// ```
+    /// use trajweave_core::trend::smoother::Smoother;
+    /// # fn main() -> trajweave_core::Result<()> {
+    /// let s = Smoother::new("lowess")?.for_response(&[0.0, 1.0, 1.0]);
+    /// assert_eq!(serde_json::to_value(&s).unwrap()["options"]["iterations"], 0);
+    /// # Ok(()) }
+    /// ```
+    pub fn for_response(&self, y: &[f64]) -> Smoother {
+        match self {
+            Smoother::Lowess(o) => Smoother::Lowess(LowessOptions {
+                iterations: Some(o.iterations_for(y)),
+                ..o.clone()
+            }),
+            other => other.clone(),
+        }
+    }
+
+    /// The smoother with every choice the fit `fit` (of response `y`) made from the data fixed
+    /// at the value it made: LOWESS iterations as in [`Smoother::for_response`], a kernel's
+    /// rule-of-thumb bandwidth at the bandwidth used, a spline's GCV penalty at the penalty
+    /// chosen. Options the user set, and the super smoother's point-by-point span, are kept.
+    /// Resampling estimators that hold the amount of smoothing fixed refit with this.
+    ///
+    /// # Examples
+    /// ```
+    /// use trajweave_core::trend::smoother::Smoother;
+    /// # fn main() -> trajweave_core::Result<()> {
+    /// let (x, y) = ([0.0, 1.0, 2.0, 3.0, 4.0], [1.0, 3.0, 2.0, 5.0, 4.0]);
+    /// let s = Smoother::new("kernel")?;
+    /// let fit = s.fit(&x, &y)?;
+    /// let fixed = s.as_fitted(&y, &fit);
+    /// assert_eq!(serde_json::to_value(&fixed).unwrap()["options"]["bandwidth"], fit.diagnostics.bandwidth.unwrap());
+    /// # Ok(()) }
+    /// ```
+    pub fn as_fitted(&self, y: &[f64], fit: &Curve) -> Smoother {
+        match self.for_response(y) {
+            Smoother::Kernel(o) if o.bandwidth.is_none() => Smoother::Kernel(KernelOptions {
+                bandwidth: fit.diagnostics.bandwidth,
+                ..o
+            }),
+            Smoother::Spline(o) if o.penalty == Penalty::Gcv => match fit.diagnostics.lambda {
+                Some(l) if l.is_finite() && l > 0.0 => Smoother::Spline(SplineOptions {
+                    penalty: Penalty::Lambda(l),
+                }),
+                _ => Smoother::Spline(o),
+            },
+            other => other,
         }
     }
 

@@ -102,6 +102,8 @@ pub fn tune_smoother(
             &format!("a whole number from 2 to the number of subjects ({s})"),
         ));
     }
+    // Response-dependent defaults fixed once on all the data, so every fold fits one method.
+    let smoother = smoother.for_response(panel.response());
     let smoothers = candidates
         .iter()
         .map(|&v| {

@@ -30,6 +30,13 @@
 //! - **delta.** After a fit at x0, points with x <= x0 + delta are not fitted: the last of
 //!   them is fitted and the ones between are linearly interpolated. The default delta is 1% of
 //!   the x range; delta = 0 fits at every distinct x.
+//! - **Binary responses.** Robustness weights assume outliers are rare errors. On a 0/1
+//!   response (exactly two distinct y values, [`is_binary`]) every point of the rarer value
+//!   is an "outlier" wherever the curve is near the common value, so the iterations give it
+//!   weight 0 and drive the curve to the common value (a mean curve of 0 for a rare event).
+//!   So when `iterations` is not set, it is 3 for other responses and 0 for a binary one; when
+//!   it is set above 0 on a binary response the fit runs as asked and the curve carries a
+//!   warning.
 //!
 //! Arithmetic: R's rules decide every weight, window and fallback; only the summation differs.
 //! Each local fit sums centred weighted moments in one pass, taking whole blocks of 512 points
@@ -41,7 +48,9 @@
 use serde::Serialize;
 
 use crate::error::{Error, Result};
-use crate::trend::curve::{check_xy, distinct_points, sort_by_x, Curve, Diagnostics, OptionValue};
+use crate::trend::curve::{
+    check_xy, distinct_points, is_binary, sort_by_x, Curve, Diagnostics, OptionValue,
+};
 
 mod moments;
 
@@ -52,22 +61,32 @@ const ITERATIONS_ALLOWED: &str = "give a whole number from 0 to 100 (robustness 
 const DELTA_ALLOWED: &str =
     "give a finite number >= 0 (the x distance within which points are interpolated)";
 const MAX_ITERATIONS: usize = 100;
+/// Robustness iterations when `iterations` is not set and the response is not binary.
+pub const DEFAULT_ITERATIONS: usize = 3;
+/// The warning a binary response with robustness iterations asked for carries.
+pub const BINARY_ROBUSTNESS_WARNING: &str = "the response has two distinct values (binary): \
+robustness iterations give the rarer value weight 0 where the curve is near the common one, \
+pulling the curve toward the common value; set iterations = 0 (or leave it unset) for a curve \
+of proportions";
 
-/// Settings of [`lowess`]; `Default`: span 2/3, iterations 3, delta `None` (= 1% of the x
-/// range).
+/// Settings of [`lowess`]; `Default`: span 2/3, iterations `None` (= 3, or 0 on a binary
+/// response), delta `None` (= 1% of the x range).
 ///
 /// # Examples
 /// ```
 /// use trajweave_core::trend::lowess::LowessOptions;
 /// let o = LowessOptions { span: 0.3, ..Default::default() };
-/// assert_eq!((o.iterations, o.delta), (3, None));
+/// assert_eq!((o.iterations, o.delta), (None, None));
+/// assert_eq!(o.iterations_for(&[1.0, 5.0, 2.0]), 3);
+/// assert_eq!(o.iterations_for(&[0.0, 1.0, 0.0]), 0);
 /// ```
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct LowessOptions {
     /// Fraction of the points in each local fit, in (0, 1].
     pub span: f64,
-    /// Robustness iterations after the first fit, 0 to 100.
-    pub iterations: usize,
+    /// Robustness iterations after the first fit, 0 to 100; `None` means 3, or 0 when the
+    /// response is binary (see the module doc).
+    pub iterations: Option<usize>,
     /// Points within this x distance of the last fitted point are interpolated; `None` means
     /// 1% of the x range, 0 fits every distinct x.
     pub delta: Option<f64>,
@@ -77,7 +96,7 @@ impl Default for LowessOptions {
     fn default() -> Self {
         LowessOptions {
             span: 2.0 / 3.0,
-            iterations: 3,
+            iterations: None,
             delta: None,
         }
     }
@@ -95,7 +114,7 @@ impl LowessOptions {
     /// let mut o = LowessOptions::default();
     /// o.set("span", &OptionValue::Number(0.5))?;
     /// o.set("iterations", &OptionValue::Number(0.0))?;
-    /// assert_eq!((o.span, o.iterations), (0.5, 0));
+    /// assert_eq!((o.span, o.iterations), (0.5, Some(0)));
     /// assert!(o.set("iterations", &OptionValue::Number(2.5)).is_err());
     /// # Ok(()) }
     /// ```
@@ -115,7 +134,7 @@ impl LowessOptions {
                 if v.fract() != 0.0 || !(0.0..=MAX_ITERATIONS as f64).contains(&v) {
                     return Err(Error::option("iterations", v, ITERATIONS_ALLOWED));
                 }
-                self.iterations = v as usize;
+                self.iterations = Some(v as usize);
             }
             "delta" => {
                 let v = value.number("delta", DELTA_ALLOWED)?;
@@ -146,17 +165,25 @@ impl LowessOptions {
     /// [`Error::InvalidOption`] naming the first option out of range.
     pub fn validate(&self) -> Result<()> {
         check_span(self.span)?;
-        if self.iterations > MAX_ITERATIONS {
-            return Err(Error::option(
-                "iterations",
-                self.iterations,
-                ITERATIONS_ALLOWED,
-            ));
+        if let Some(k) = self.iterations.filter(|&k| k > MAX_ITERATIONS) {
+            return Err(Error::option("iterations", k, ITERATIONS_ALLOWED));
         }
         if let Some(d) = self.delta {
             check_delta(d)?;
         }
         Ok(())
+    }
+}
+
+impl LowessOptions {
+    /// The robustness iterations a fit to response `y` runs: the value set, else 0 on a
+    /// binary `y` and [`DEFAULT_ITERATIONS`] otherwise.
+    pub fn iterations_for(&self, y: &[f64]) -> usize {
+        match self.iterations {
+            Some(k) => k,
+            None if is_binary(y) => 0,
+            None => DEFAULT_ITERATIONS,
+        }
     }
 }
 
@@ -179,9 +206,10 @@ fn check_delta(v: f64) -> Result<()> {
 /// Fits LOWESS of `y` on `x` (see the module doc for the method and its conventions).
 ///
 /// Returns a [`Curve`] at the distinct x values (tied x share one fit); its settings hold the
-/// delta actually used, its diagnostics the span and the robustness iterations run (fewer than
-/// asked when the residual scale vanished). One distinct x is enough: the fit is then the
-/// (robust) weighted mean of y.
+/// iterations and delta actually used, its diagnostics the span and the robustness iterations
+/// run (fewer than asked when the residual scale vanished), its warnings
+/// [`BINARY_ROBUSTNESS_WARNING`] when iterations were set above 0 on a binary response. One
+/// distinct x is enough: the fit is then the (robust) weighted mean of y.
 ///
 /// # Examples
 /// ```
@@ -210,18 +238,19 @@ pub fn lowess(x: &[f64], y: &[f64], options: &LowessOptions) -> Result<Curve> {
     let n = xs.len();
     let range = xs[n - 1] - xs[0];
     let delta = options.delta.unwrap_or(0.01 * range);
+    let asked = options.iterations_for(&ys);
     let mut fit = vec![0.0; n];
-    let iterations = fit_sorted(
-        &xs,
-        &ys,
-        (options.span, options.iterations, delta),
-        BLOCK,
-        &mut fit,
-    );
+    let iterations = fit_sorted(&xs, &ys, (options.span, asked, delta), BLOCK, &mut fit);
     let (ux, uf) = distinct_points(&xs, &fit);
     let used = LowessOptions {
+        span: options.span,
+        iterations: Some(asked),
         delta: Some(delta),
-        ..options.clone()
+    };
+    let warnings = if asked > 0 && is_binary(&ys) {
+        vec![BINARY_ROBUSTNESS_WARNING.to_string()]
+    } else {
+        Vec::new()
     };
     // Serialising two numbers and an integer cannot fail.
     let settings = serde_json::to_value(&used).unwrap_or_default();
@@ -230,7 +259,7 @@ pub fn lowess(x: &[f64], y: &[f64], options: &LowessOptions) -> Result<Curve> {
         iterations: Some(iterations),
         ..Diagnostics::new(n)
     };
-    Ok(Curve::new("lowess", ux, uf, settings, diagnostics))
+    Ok(Curve::new("lowess", ux, uf, settings, diagnostics).with_warnings(warnings))
 }
 
 /// LOWESS of sorted data into `fit`; returns the robustness iterations run.
@@ -427,11 +456,43 @@ mod tests {
         let c = lowess(&[2.0], &[7.0], &LowessOptions::default()).unwrap();
         assert_eq!((c.x.clone(), c.fitted.clone()), (vec![2.0], vec![7.0]));
         let o = LowessOptions {
-            iterations: 0,
+            iterations: Some(0),
             ..Default::default()
         };
         let c = lowess(&[1.0, 1.0, 1.0], &[1.0, 2.0, 6.0], &o).unwrap();
         assert_eq!((c.x.clone(), c.fitted.clone()), (vec![1.0], vec![3.0]));
+    }
+
+    #[test]
+    fn binary_response_skips_robustness_unless_asked() {
+        // Closed form: one point in ten is 1, evenly spread, so the proportion is 0.1 in every
+        // window of the default span; local lines over such a pattern stay within 0.02 of it.
+        let x: Vec<f64> = (0..200).map(f64::from).collect();
+        let y: Vec<f64> = (0..200).map(|i| f64::from(u8::from(i % 10 == 3))).collect();
+        let c = lowess(&x, &y, &LowessOptions::default()).unwrap();
+        assert_eq!(c.settings["iterations"], 0);
+        assert!(c.warnings.is_empty());
+        assert!(
+            c.fitted.iter().all(|f| (f - 0.1).abs() < 0.02),
+            "{:?}",
+            c.fitted
+        );
+        // Asked for: the robustness weights of every 1 are 0 (|r| = 0.9 > 6 median |r| = 0.6),
+        // so the curve is 0 everywhere, with the warning.
+        let asked = LowessOptions {
+            iterations: Some(3),
+            ..Default::default()
+        };
+        let c = lowess(&x, &y, &asked).unwrap();
+        assert!(c.fitted.iter().all(|&f| f.abs() < 1e-12));
+        assert_eq!(c.warnings, vec![BINARY_ROBUSTNESS_WARNING.to_string()]);
+        // Three distinct values: the default stays 3 iterations.
+        let mut y3 = y.clone();
+        y3[0] = 2.0;
+        assert_eq!(
+            lowess(&x, &y3, &LowessOptions::default()).unwrap().settings["iterations"],
+            3
+        );
     }
 
     #[test]
