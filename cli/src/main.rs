@@ -37,6 +37,9 @@ enum Command {
     Simulate(SimulateArgs),
     /// The mean curve of response on time, with an optional subject-bootstrap band.
     Smooth(smooth::SmoothArgs),
+    /// The mean curve's average change per time unit over the central observation times, and
+    /// the least-squares slope, with subject-bootstrap intervals.
+    Change(smooth::ChangeArgs),
     /// Choose the amount of smoothing by cross-validation over subjects.
     Tune(smooth::TuneArgs),
     /// Residuals, subjects ranked by them, picks at quantiles, a sample and unusual subjects.
@@ -144,6 +147,7 @@ fn main() -> ExitCode {
         Command::Describe(a) => run_describe(&a),
         Command::Simulate(a) => run_simulate(&a),
         Command::Smooth(a) => smooth::run_smooth(&a),
+        Command::Change(a) => smooth::run_change(&a),
         Command::Tune(a) => smooth::run_tune(&a),
         Command::Individuals(a) => individuals::run_individuals(&a),
         Command::Covariate(a) => covariates::run_covariate(&a),

@@ -1,9 +1,11 @@
-//! `trajweave smooth` (the mean curve with an optional band) and `trajweave tune` (choosing
-//! the smoothing by cross-validation over subjects).
+//! `trajweave smooth` (the mean curve with an optional band), `trajweave change` (its average
+//! change per time unit with intervals) and `trajweave tune` (choosing the smoothing by
+//! cross-validation over subjects).
 
 use std::fmt::Write as _;
 
 use clap::Args;
+use trajweave_core::trend::change::{average_change, ChangeOptions};
 use trajweave_core::trend::curve::OptionValue;
 use trajweave_core::trend::mean_curve::{mean_curve, BootstrapOptions};
 use trajweave_core::trend::smoother::Smoother;
@@ -129,6 +131,7 @@ pub fn run_smooth(a: &SmoothArgs) -> Result<(), CliError> {
     let format = csv_or_json(&a.format)?;
     let panel = a.panel.read()?;
     let m = mean_curve(&panel, &smoother, a.at.as_deref(), boot.as_ref())?;
+    warn(&m.curve.warnings);
     let text = match format {
         Format::Json => json(&m)?,
         Format::Table => {
@@ -148,6 +151,85 @@ pub fn run_smooth(a: &SmoothArgs) -> Result<(), CliError> {
         }
     };
     write_out(&a.out, text.as_bytes())
+}
+
+/// Prints each warning of a result to standard error.
+fn warn(warnings: &[String]) {
+    for w in warnings {
+        eprintln!("warning: {w}");
+    }
+}
+
+#[derive(Args)]
+pub struct ChangeArgs {
+    #[command(flatten)]
+    panel: PanelArgs,
+    #[command(flatten)]
+    smoother: SmootherArgs,
+    /// Share of the observation times the window covers, in (0, 1].
+    #[arg(long, default_value_t = 0.9)]
+    central: f64,
+    /// Number of subject resamples (10 to 100000).
+    #[arg(long, default_value_t = 200.0)]
+    reps: f64,
+    /// Coverage of the intervals.
+    #[arg(long, default_value_t = 0.95)]
+    level: f64,
+    /// Seed of the resamples.
+    #[arg(long, default_value_t = 1.0)]
+    seed: f64,
+    /// Output: a readable table or JSON.
+    #[arg(long, value_enum, default_value = "table")]
+    format: Format,
+}
+
+pub fn run_change(a: &ChangeArgs) -> Result<(), CliError> {
+    let smoother = a.smoother.smoother()?;
+    let o = ChangeOptions::from_numbers(a.central, a.reps, a.level, a.seed)?;
+    let panel = a.panel.read()?;
+    let c = average_change(&panel, &smoother, &o)?;
+    warn(&c.warnings);
+    let text = match a.format {
+        Format::Json => json(&c)?,
+        Format::Table => {
+            let pct = 100.0 * c.level;
+            let mut s = format!(
+                "average change per time unit of the {} mean curve from {} to {} (central {}):\n",
+                c.smoother.family(),
+                c.from,
+                c.to,
+                c.central
+            );
+            let _ = writeln!(
+                s,
+                "{:>14} {:>14} {:>22}",
+                "",
+                "estimate",
+                format!("{pct}% interval")
+            );
+            let _ = writeln!(
+                s,
+                "{:>14} {:>14.6} {:>22}",
+                "mean curve",
+                c.estimate,
+                format!("{:.4} to {:.4}", c.lower, c.upper)
+            );
+            let _ = writeln!(
+                s,
+                "{:>14} {:>14.6} {:>22}",
+                "least squares",
+                c.ols_slope,
+                format!("{:.4} to {:.4}", c.ols_lower, c.ols_upper)
+            );
+            let _ = writeln!(
+                s,
+                "{} subject resamples (seed {}), {} failed",
+                c.reps, c.seed, c.failed
+            );
+            s
+        }
+    };
+    write_out(std::path::Path::new("-"), text.as_bytes())
 }
 
 fn csv_or_json(f: &str) -> Result<Format, CliError> {

@@ -569,3 +569,100 @@ fn screen_ranks_and_refuses_unknown_names() {
     let o = on_file("screen", &path, &["--candidates", "toeplitz"]);
     assert!(stderr(&o).contains("`grid`"), "{}", stderr(&o));
 }
+
+/// Pairs of subjects on the line 50 - 1.25 t sharing visit times with opposite noise, so the
+/// noise sums to 0 at every time.
+fn paired_line_csv() -> String {
+    let mut s = String::from("id,t,y\n");
+    for k in 0..15 {
+        for v in 0..4 {
+            let t = f64::from(k) * 0.37 + f64::from(v) * 1.1;
+            let e = f64::from((k * 7 + v * 3) % 5) - 2.0;
+            s += &format!("{},{t},{}\n", 2 * k + 1, 50.0 - 1.25 * t + e);
+            s += &format!("{},{t},{}\n", 2 * k + 2, 50.0 - 1.25 * t - e);
+        }
+    }
+    s
+}
+
+#[test]
+fn change_json_table_and_errors() {
+    let path = temp_csv("paired.csv", &paired_line_csv());
+    let o = on_file(
+        "change",
+        &path,
+        &[
+            "--method",
+            "lowess",
+            "--iterations",
+            "0",
+            "--reps",
+            "20",
+            "--format",
+            "json",
+        ],
+    );
+    assert!(o.status.success(), "{}", stderr(&o));
+    let c: Value = serde_json::from_slice(&o.stdout).unwrap();
+    // Closed form: a fit linear in y with weights depending on x alone reproduces the line
+    // when the noise cancels at each time, so the average slope and the least-squares slope
+    // are both -1.25.
+    assert!((c["estimate"].as_f64().unwrap() + 1.25).abs() < 1e-9);
+    assert!((c["ols_slope"].as_f64().unwrap() + 1.25).abs() < 1e-12);
+    assert_eq!(c["reps"], 20);
+    assert_eq!(c["central"], 0.9);
+    assert_eq!(c["smoother"]["family"], "lowess");
+    assert!(c["lower"].as_f64().unwrap() <= c["upper"].as_f64().unwrap());
+    let table = on_file("change", &path, &["--reps", "20"]);
+    assert!(table.status.success());
+    let text = String::from_utf8_lossy(&table.stdout);
+    assert!(
+        text.contains("mean curve") && text.contains("least squares"),
+        "{text}"
+    );
+
+    let bad = on_file("change", &path, &["--central", "1.5"]);
+    assert_eq!(bad.status.code(), Some(2));
+    assert_eq!(
+        stderr(&bad),
+        "error [invalid_option]: `central` = 1.5 is not allowed: a number in (0, 1], the share \
+         of observation times the window covers (e.g. 0.9)"
+    );
+    let bad = on_file("change", &path, &["--reps", "0"]);
+    assert_eq!(
+        stderr(&bad),
+        "error [invalid_option]: `reps` = 0 is not allowed: a whole number from 10 to 100000"
+    );
+}
+
+#[test]
+fn binary_response_lowess_is_a_proportion_unless_robustness_is_asked() {
+    // One visit in ten is 1, evenly spread: the proportion is 0.1 in every window (closed
+    // form), and local lines over the pattern stay within 0.02 of it.
+    let mut csv = String::from("id,t,y\n");
+    for i in 0..200 {
+        csv += &format!("{},{i},{}\n", i / 4 + 1, u8::from(i % 10 == 3));
+    }
+    let path = temp_csv("binary.csv", &csv);
+    let o = on_file("smooth", &path, &["--format", "json"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert_eq!(stderr(&o), "");
+    let m: Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(m["curve"]["settings"]["iterations"], 0);
+    assert_eq!(m["curve"]["warnings"], serde_json::json!([]));
+    for f in m["fitted"].as_array().unwrap() {
+        assert!((f.as_f64().unwrap() - 0.1).abs() < 0.02, "{f}");
+    }
+    // Asked for: robustness weights discard every 1, the curve is 0, and a warning says why.
+    let o = on_file("smooth", &path, &["--iterations", "3", "--format", "json"]);
+    assert!(o.status.success());
+    let m: Value = serde_json::from_slice(&o.stdout).unwrap();
+    let warning = m["curve"]["warnings"][0].as_str().unwrap().to_string();
+    assert!(warning.starts_with("the response has two distinct values (binary)"));
+    assert_eq!(stderr(&o), format!("warning: {warning}"));
+    assert!(m["fitted"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .all(|f| f.as_f64().unwrap().abs() < 1e-12));
+}
