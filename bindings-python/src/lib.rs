@@ -3,6 +3,7 @@
 
 use pyo3::prelude::*;
 
+mod change;
 mod correlation;
 mod covariates;
 mod describe;
@@ -26,6 +27,7 @@ fn _trajweave(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(smoother::smoother_settings, m)?)?;
     m.add_function(wrap_pyfunction!(mean_curve::panel_mean_curve, m)?)?;
     m.add_function(wrap_pyfunction!(tune::panel_tune_smoother, m)?)?;
+    m.add_function(wrap_pyfunction!(change::panel_average_change, m)?)?;
     m.add_function(wrap_pyfunction!(covariates::values_equal_count_bands, m)?)?;
     m.add_function(wrap_pyfunction!(covariates::panel_covariate_bands, m)?)?;
     m.add_function(wrap_pyfunction!(covariates::panel_conditional_trends, m)?)?;

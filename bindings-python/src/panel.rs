@@ -126,6 +126,11 @@ impl NativePanel {
     }
 
     #[getter]
+    fn is_binary(&self) -> bool {
+        self.inner.is_binary()
+    }
+
+    #[getter]
     fn order<'py>(&self, py: Python<'py>) -> Bound<'py, PyArray1<usize>> {
         self.inner.order().to_vec().into_pyarray(py)
     }

@@ -34,13 +34,14 @@ pub fn vec(a: &PyReadonlyArray1<'_, f64>) -> Vec<f64> {
         .map_or_else(|_| a.as_array().to_vec(), <[f64]>::to_vec)
 }
 
-/// A curve as (x, fitted, method, settings JSON, diagnostics JSON).
+/// A curve as (x, fitted, method, settings JSON, diagnostics JSON, warnings).
 pub type CurveParts<'py> = (
     Bound<'py, PyArray1<f64>>,
     Bound<'py, PyArray1<f64>>,
     String,
     String,
     String,
+    Vec<String>,
 );
 
 pub fn curve_parts<'py>(py: Python<'py>, c: Curve) -> PyResult<CurveParts<'py>> {
@@ -52,6 +53,7 @@ pub fn curve_parts<'py>(py: Python<'py>, c: Curve) -> PyResult<CurveParts<'py>> 
         c.method,
         settings,
         diagnostics,
+        c.warnings,
     ))
 }
 

@@ -57,6 +57,15 @@ panel_subject_ids <- function(panel) {
   tw_value(.Call(wrap__tw_panel_info, panel[["pointer"]]))$subject_ids
 }
 
+# Whether the response holds exactly two distinct values (a 0/1 outcome); LOWESS then runs
+# without robustness iterations unless they are set.
+panel_is_binary <- function(panel) {
+  if (!inherits(panel, "trajweave_panel")) {
+    tw_stop_option("panel", panel, "build one with panel() or panel_from_frame()")
+  }
+  tw_value(.Call(wrap__tw_panel_info, panel[["pointer"]]))$binary
+}
+
 print.trajweave_panel <- function(x, ...) {
   info <- tw_value(.Call(wrap__tw_panel_info, x[["pointer"]]))
   cat("<trajweave panel>\n")

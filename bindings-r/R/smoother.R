@@ -90,7 +90,9 @@ fit_smoother <- function(smoother, x, y) {
   tw_curve(curve)
 }
 
+# A curve from the native side: classed, its warnings (if any) raised as R warnings.
 tw_curve <- function(curve) {
+  for (w in curve$warnings) warning(w, call. = FALSE)
   class(curve) <- "trajweave_curve"
   curve
 }

@@ -330,3 +330,65 @@ def test_screening_three_fronts(tmp_path):
     assert from_r["structure"] == [f["structure"] for f in s.fits]
     same(from_r["loglik"], [f["loglik"] for f in s.fits], rel=R_REL_TOL)
     same(from_r["parameters"], [f["parameters"] for f in s.fits], rel=1e-9)
+
+
+CHANGE_SMOOTHERS = [
+    ("lowess", [], "smoother_lowess()", tw.Lowess()),
+    ("kernel", ["--bandwidth", "0.5", "--shape", "box"], 'smoother_kernel(bandwidth = 0.5, shape = "box")',
+     tw.Kernel(bandwidth=0.5, shape="box")),
+    ("spline", [], "smoother_spline()", tw.Spline()),
+]
+CHANGE_NUMBERS = ["estimate", "lower", "upper", "from", "to", "ols_slope", "ols_lower", "ols_upper",
+                  "level", "reps", "seed", "failed", "central"]
+
+
+@pytest.mark.parametrize("family, flags, r_spec, py_spec", CHANGE_SMOOTHERS, ids=[s[0] for s in CHANGE_SMOOTHERS])
+def test_average_change_three_fronts(tmp_path, family, flags, r_spec, py_spec):
+    from_cli = json.loads(cli("change", DEMO, "--subject", "patient", "--time", "years", "--response", "egfr",
+                              "--method", family, *flags, "--central", "0.8", "--reps", "30", "--seed", "5",
+                              "--format", "json"))
+    df = pd.read_csv(DEMO)
+    panel = tw.Panel.from_frame(df, "patient", "years", "egfr")
+    from_py = tw.average_change(panel, py_spec, central=0.8, reps=30, seed=5)
+    assert from_cli == from_py.to_dict()  # exact: the same core, the same serde JSON
+    code = (f'df <- read.csv("{DEMO}")\n'
+            'p <- panel_from_frame(df, "patient", "years", "egfr")\n'
+            f'c <- average_change(p, {r_spec}, central = 0.8, reps = 30, seed = 5)\n'
+            f'cat(jsonlite::toJSON(c[c({", ".join(repr(k) for k in CHANGE_NUMBERS)}, "method")], '
+            'digits = NA, auto_unbox = TRUE))')
+    from_r = json.loads(rscript(code, tmp_path))
+    for k in CHANGE_NUMBERS:
+        same(from_cli[k], from_r[k], path=k, rel=R_REL_TOL)
+    assert from_r["method"] == from_cli["method"]
+
+
+def test_binary_warning_three_fronts(tmp_path):
+    # A 0/1 response (eGFR < 30) with robustness iterations asked for: the same curve and the
+    # same warning from the CLI (stderr and JSON), Python (UserWarning) and R (warning()).
+    csv = tmp_path / "low.csv"
+    df = pd.read_csv(DEMO)
+    df.assign(low=(df.egfr < 30).astype(int))[["patient", "years", "low"]].to_csv(csv, index=False)
+    out = subprocess.run([CLI, "smooth", str(csv), "--subject", "patient", "--time", "years", "--response", "low",
+                          "--iterations", "3", "--at", "1,4,7", "--format", "json"], capture_output=True, text=True)
+    assert out.returncode == 0, out.stderr
+    from_cli = json.loads(out.stdout)
+    (warning,) = from_cli["curve"]["warnings"]
+    assert out.stderr.strip() == f"warning: {warning}"
+    panel = tw.Panel.from_frame(pd.read_csv(csv), "patient", "years", "low")
+    with pytest.warns(UserWarning) as caught:
+        m = tw.mean_curve(panel, tw.Lowess(iterations=3), at=[1, 4, 7])
+    assert [str(w.message) for w in caught] == [warning]
+    assert from_cli["fitted"] == m.fitted.tolist()
+    code = (f'df <- read.csv("{csv}")\n'
+            'p <- panel_from_frame(df, "patient", "years", "low")\n'
+            'w <- NULL\n'
+            'm <- withCallingHandlers(mean_curve(p, smoother_lowess(iterations = 3), at = c(1, 4, 7)),\n'
+            '  warning = function(e) { w <<- conditionMessage(e); invokeRestart("muffleWarning") })\n'
+            'cat(jsonlite::toJSON(list(w = w, fitted = m$fitted, default = mean_curve(p, smoother_lowess(), '
+            'at = c(1, 4, 7))$fitted), digits = NA, auto_unbox = TRUE))')
+    from_r = json.loads(rscript(code, tmp_path))
+    assert from_r["w"] == warning
+    same(from_r["fitted"], from_cli["fitted"], rel=R_REL_TOL)
+    default = tw.mean_curve(panel, tw.Lowess(), at=[1, 4, 7]).fitted.tolist()
+    same(from_r["default"], default, rel=R_REL_TOL)
+    assert min(default) > 0  # the unset default runs no robustness iterations on 0/1 data

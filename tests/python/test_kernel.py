@@ -14,7 +14,7 @@ def direct(x, y, at, h, shape, degree):
     out = []
     for t in at:
         d = x - t
-        w = (np.abs(d) < SQRT3 * h).astype(float) if shape == "box" else np.exp(-0.5 * (d / h) ** 2)
+        w = (np.abs(d) <= SQRT3 * h).astype(float) if shape == "box" else np.exp(-0.5 * (d / h) ** 2)
         s0, s1, s2, t0, t1 = w.sum(), (w * d).sum(), (w * d * d).sum(), (w * y).sum(), (w * d * y).sum()
         det = s0 * s2 - s1 * s1
         out.append((s2 * t0 - s1 * t1) / det if degree == 1 and det > 1e-12 * s0 * s2 else t0 / s0)
@@ -70,3 +70,21 @@ def test_option_errors():
         tw.Kernel().fit([1.0, 2.0], [1.0])
     with pytest.raises(tw.NonFiniteError, match="`x` is not finite at row 2"):
         tw.Kernel().fit([1.0, np.nan], [1.0, 2.0])
+
+
+def test_box_window_is_closed_on_cars():
+    # Reference: R's stats::ksmooth(cars$speed, cars$dist, "box", bandwidth = b), fixture
+    # kernel_reference.json section "cars" (tests/reference/kernel_py.py): at the distinct
+    # speeds the core's curve is evaluated exactly there; points at distance b / 2 are inside.
+    from conftest import load, numbers
+
+    cars = load("kernel_reference.json")["cars"]
+    x, y = numbers(cars["speed"]), numbers(cars["dist"])
+    for case in cars["cases"]:
+        if case["points"] != "data":
+            continue
+        c = tw.Kernel(bandwidth=case["bandwidth"], shape="box", degree=0).fit(x, y)
+        np.testing.assert_array_equal(c.x, numbers(case["at"]))
+        np.testing.assert_allclose(c.fitted, numbers(case["fitted"]), rtol=1e-12, atol=0)
+    c = tw.Kernel(bandwidth=1 / np.sqrt(3), shape="box", degree=0).fit(x, y)
+    assert c.predict([23.0])[0] == 82.5  # R: ksmooth(..., bandwidth = 2, x.points = 23)

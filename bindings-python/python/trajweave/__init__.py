@@ -62,7 +62,7 @@ from .smoothers import (
     smoothing_spline,
     super_smoother,
 )
-from .trend import Bootstrap, MeanCurve, Tuning, mean_curve, tune_smoother
+from .trend import Bootstrap, Change, MeanCurve, Tuning, average_change, mean_curve, tune_smoother
 
 __all__ = [
     "report",
@@ -90,6 +90,8 @@ __all__ = [
     "Bootstrap",
     "MeanCurve",
     "mean_curve",
+    "Change",
+    "average_change",
     "Tuning",
     "tune_smoother",
     "equal_count_bands",

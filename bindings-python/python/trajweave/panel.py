@@ -159,6 +159,11 @@ class Panel:
         """Responses, sorted by (subject, time)."""
         return self._native.response
 
+    def is_binary(self):
+        """Whether the response holds exactly two distinct values (a 0/1 outcome); LOWESS then
+        runs without robustness iterations unless they are set."""
+        return self._native.is_binary
+
     @property
     def order(self):
         """``order[k]`` is the input row of sorted row ``k``."""

@@ -14,6 +14,7 @@ are the same in every front.
 """
 
 import json
+import warnings as _warnings
 
 import numpy as np
 
@@ -23,19 +24,25 @@ from .panel import _floats
 
 
 class Curve:
-    """A fitted smooth: distinct ``x`` (increasing), ``fitted`` at each, ``settings`` used and
-    ``diagnostics`` (df, gcv, lambda, span, bandwidth, iterations, rss where they apply)."""
+    """A fitted smooth: distinct ``x`` (increasing), ``fitted`` at each, ``settings`` used,
+    ``diagnostics`` (df, gcv, lambda, span, bandwidth, iterations, rss where they apply) and
+    ``warnings`` (a list of texts, each also issued as a ``UserWarning`` when the curve is
+    fitted)."""
 
-    def __init__(self, x, fitted, method, settings, diagnostics):
+    def __init__(self, x, fitted, method, settings, diagnostics, warnings=()):
         self.x = x
         self.fitted = fitted
         self.method = method
         self.settings = json.loads(settings)
         self.diagnostics = Record(json.loads(diagnostics))
+        self.warnings = list(warnings)
 
     @classmethod
     def _from_parts(cls, parts):
-        return cls(*parts)
+        curve = cls(*parts)
+        for w in curve.warnings:
+            _warnings.warn(w, UserWarning, stacklevel=3)
+        return curve
 
     def predict(self, new_x):
         """The curve at ``new_x``: linear interpolation between fitted points, the end values
@@ -50,6 +57,7 @@ class Curve:
             "fitted": self.fitted.tolist(),
             "settings": self.settings,
             "diagnostics": self.diagnostics.to_dict(),
+            "warnings": list(self.warnings),
         }
 
     def __repr__(self):
@@ -90,7 +98,9 @@ class _Spec:
 
 class Lowess(_Spec):
     """LOWESS (Cleveland 1979): ``span`` fraction of points (default 2/3), ``iterations``
-    robustness steps (default 3), ``delta`` interpolation distance (default 1% of the x range)."""
+    robustness steps (default 3, or 0 when the response has two distinct values: robustness
+    weights would discard the rarer value; set above 0 on such a response, the fit warns),
+    ``delta`` interpolation distance (default 1% of the x range)."""
 
     family = "lowess"
 

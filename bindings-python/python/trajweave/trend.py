@@ -1,6 +1,8 @@
-"""The mean trend of a panel (``mean_curve``) and the choice of smoothing (``tune_smoother``)."""
+"""The mean trend of a panel (``mean_curve``), its average change per time unit
+(``average_change``) and the choice of smoothing (``tune_smoother``)."""
 
 import json
+import warnings
 
 from . import _trajweave
 from ._record import Record
@@ -73,3 +75,37 @@ def tune_smoother(panel, smoother, candidates, parameter=None, folds=None, seed=
     return Tuning(json.loads(_trajweave.panel_tune_smoother(
         panel._native, smoother.family, smoother._pairs(), [float(c) for c in candidates],
         parameter=parameter, folds=folds, seed=int(seed))))
+
+
+class Change(Record):
+    """``estimate`` (the mean curve's average slope from ``from`` to ``to``, the central
+    ``central`` share of the observation times), ``lower``/``upper`` (its percentile interval at
+    ``level`` from ``reps`` subject-bootstrap resamples, ``seed``, ``failed``), ``ols_slope`` with
+    ``ols_lower``/``ols_upper`` (least-squares slope of response on time, same resamples),
+    ``smoother``, ``settings``, ``method`` (in words) and ``warnings``. ``from`` is a Python
+    keyword: read it as ``getattr(c, "from")`` or ``c.to_dict()["from"]``."""
+
+    def __repr__(self):
+        d = self._data
+        return (f"Change({d['estimate']:.4g} per time unit from {d['from']:.4g} to {d['to']:.4g}, "
+                f"{d['level']:g} interval {d['lower']:.4g} to {d['upper']:.4g}; "
+                f"least squares {d['ols_slope']:.4g})")
+
+
+def average_change(panel, smoother, central=0.9, reps=200, level=0.95, seed=1):
+    """The average change per time unit of the smoother's mean curve over the central
+    ``central`` share of the observation times, (m(to) - m(from)) / (to - from), with a
+    percentile interval from resampling subjects, and the least-squares slope beside it.
+
+    >>> import trajweave as tw
+    >>> p = tw.Panel.from_frame(tw.simulate(subjects=60, seed=2), "patient", "years", "egfr")
+    >>> c = tw.average_change(p, tw.Spline(), reps=20)
+    >>> bool(c.lower <= c.estimate <= c.upper), c.reps
+    (True, 20)
+    """
+    c = Change(json.loads(_trajweave.panel_average_change(
+        panel._native, smoother.family, smoother._pairs(), central=float(central),
+        reps=float(reps), level=float(level), seed=float(seed))))
+    for w in c.warnings:
+        warnings.warn(w, UserWarning, stacklevel=2)
+    return c

@@ -35,12 +35,29 @@ test_that("box local constant matches stats::ksmooth(kernel = \"box\")", {
   d <- kernel_data()
   b <- 1.2345 # not a multiple of the grid step: no point sits on a window edge
   ref <- stats::ksmooth(d$x, d$y, kernel = "box", bandwidth = b, x.points = sort(unique(d$x)))
-  # Our h is the kernel's standard deviation: the box is flat on |x - t| < sqrt(3) h = b / 2.
+  # Our h is the kernel's standard deviation: the box is flat on |x - t| <= sqrt(3) h = b / 2.
   fit <- fit_smoother(smoother_kernel(bandwidth = b / (2 * sqrt(3)), shape = "box", degree = 0),
     d$x, d$y
   )
   expect_identical(fit$x, ref$x)
   expect_lt(max(abs(fit$fitted - ref$y)), TOL_KERNEL * sd(d$y))
+})
+
+test_that("the box window is closed, as stats::ksmooth's: cars at several bandwidths", {
+  at <- sort(unique(cars$speed))
+  for (b in c(1, 2, 3, 5)) {
+    ref <- stats::ksmooth(cars$speed, cars$dist, kernel = "box", bandwidth = b, x.points = at)
+    fit <- fit_smoother(smoother_kernel(bandwidth = b / (2 * sqrt(3)), shape = "box", degree = 0),
+      cars$speed, cars$dist
+    )
+    # Integer speeds: points at distance b / 2 are exactly on the edge, and inside.
+    expect_lt(max(abs(fit$fitted - ref$y)), 1e-12 * sd(cars$dist), label = paste("b =", b))
+  }
+  # R: ksmooth(cars$speed, cars$dist, "box", bandwidth = 2, x.points = 23)$y is 82.5.
+  fit <- fit_smoother(smoother_kernel(bandwidth = 1 / sqrt(3), shape = "box", degree = 0),
+    cars$speed, cars$dist
+  )
+  expect_identical(fit$fitted[fit$x == 23], 82.5)
 })
 
 test_that("Gaussian local constant matches stats::ksmooth(kernel = \"normal\")", {

@@ -6,14 +6,16 @@
 //! the R wrapper raises the classed condition. A core error therefore never unwinds through R.
 //!
 //! Files mirror the core's modules: `panel.rs`, `describe.rs`, `simulate.rs`, `smoother.rs`
-//! (with the curve's `predict`), `mean_curve.rs`, `tune.rs`, `individuals.rs` (residuals,
-//! ranking, sample, unusual), `covariates.rs` (bands, conditional, groups, trajectory_grid),
-//! `correlation.rs` (binned correlation), `variogram.rs` (variogram, process variance and the variogram fit), `screen.rs`
-//! (covariance-structure screening), `error.rs`;
+//! (with the curve's `predict`), `mean_curve.rs`, `change.rs` (average change), `tune.rs`,
+//! `individuals.rs` (residuals, ranking, sample, unusual), `covariates.rs` (bands,
+//! conditional, groups, trajectory_grid), `correlation.rs` (binned correlation), `variogram.rs`
+//! (variogram, process variance and the variogram fit), `screen.rs` (covariance-structure
+//! screening), `error.rs`;
 //! `convert.rs` and `json.rs` hold the R value conversions they share.
 
 use extendr_api::prelude::*;
 
+mod change;
 mod convert;
 mod correlation;
 mod covariates;
@@ -38,6 +40,7 @@ extendr_module! {
     use simulate;
     use smoother;
     use mean_curve;
+    use change;
     use tune;
     use individuals;
     use covariates;

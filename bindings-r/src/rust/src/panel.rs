@@ -130,6 +130,7 @@ fn info(x: &Robj) -> Outcome {
             "rows_dropped",
             "covariates",
             "subject_ids",
+            "binary",
         ]
         .into_iter(),
         vec![
@@ -139,6 +140,7 @@ fn info(x: &Robj) -> Outcome {
             (p.dropped_rows().len() as f64).into(),
             Strings::from_values(covariates).into(),
             crate::convert::ids_robj(p.ids(), crate::convert::text_ids(p)),
+            p.is_binary().into(),
         ],
     )
 }

@@ -42,21 +42,22 @@ pub fn build(spec: &Robj) -> Result<Smoother, Failure> {
     Ok(Smoother::from_options(&family, &options)?)
 }
 
-/// A curve as the R list `list(method, x, fitted, settings, diagnostics)` (the R wrapper adds
-/// the class).
+/// A curve as the R list `list(method, x, fitted, settings, diagnostics, warnings)` (the R
+/// wrapper adds the class and raises the warnings).
 pub fn curve_robj(c: &Curve) -> Outcome {
     let settings = to_robj(&c.settings)?;
     let diagnostics = serde_json::to_value(&c.diagnostics)
         .map_err(|e| Failure::Internal(e.to_string()))
         .and_then(|v| to_robj(&v))?;
     named_list(
-        ["method", "x", "fitted", "settings", "diagnostics"].into_iter(),
+        ["method", "x", "fitted", "settings", "diagnostics", "warnings"].into_iter(),
         vec![
             c.method.as_str().into(),
             c.x.as_slice().into(),
             c.fitted.as_slice().into(),
             settings,
             diagnostics,
+            Strings::from_values(c.warnings.iter().map(String::as_str)).into(),
         ],
     )
 }

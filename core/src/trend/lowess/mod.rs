@@ -65,9 +65,9 @@ const MAX_ITERATIONS: usize = 100;
 pub const DEFAULT_ITERATIONS: usize = 3;
 /// The warning a binary response with robustness iterations asked for carries.
 pub const BINARY_ROBUSTNESS_WARNING: &str = "the response has two distinct values (binary): \
-robustness iterations give the rarer value weight 0 where the curve is near the common one, \
-pulling the curve toward the common value; set iterations = 0 (or leave it unset) for a curve \
-of proportions";
+robustness weights discard the rarer value (weight 0 wherever the curve is near the common \
+one), pulling the curve toward the common value; set iterations = 0 (or leave it unset) for a \
+curve of proportions";
 
 /// Settings of [`lowess`]; `Default`: span 2/3, iterations `None` (= 3, or 0 on a binary
 /// response), delta `None` (= 1% of the x range).
