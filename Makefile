@@ -67,6 +67,7 @@ demo-data-check: cli
 fixtures-check: setup
 	$(PY) tests/reference/describe_reference.py --check
 	$(PY) tests/reference/kernel_py.py --check
+	$(PY) tests/reference/change_py.py --check
 	Rscript tests/reference/lowess_r.R --check
 	$(PY) tests/reference/lowess_py.py --check
 	Rscript tests/reference/supsmu_r.R --check
