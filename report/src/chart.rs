@@ -246,7 +246,59 @@ pub struct Plot {
     pub width: f64,
     /// Height, pixels.
     pub height: f64,
+    /// The x axis ends where the data end (ticks inside the data's range only) instead of at
+    /// the nice ticks around it: for time axes, so no curve seems to stop short of the axis.
+    pub tight_x: bool,
+    /// A row of numbers at risk under the x axis, at its ticks.
+    pub at_risk: Option<AtRisk>,
 }
+
+/// Each subject's first and last visit time, for a "subjects in follow-up" row under a time
+/// axis: at time t, the subjects with first <= t <= last.
+#[derive(Debug, Clone, PartialEq)]
+pub struct AtRisk {
+    /// Label of the row.
+    pub label: String,
+    /// First visit times, sorted.
+    first: Vec<f64>,
+    /// Last visit times, sorted.
+    last: Vec<f64>,
+}
+
+impl AtRisk {
+    /// The row from each subject's (first, last) visit time.
+    ///
+    /// # Examples
+    /// ```
+    /// use trajweave_report::chart::AtRisk;
+    /// let r = AtRisk::new("in follow-up", &[(0.0, 2.0), (0.0, 5.0), (1.0, 1.0)]);
+    /// assert_eq!(r.count(0.0), 2);
+    /// assert_eq!(r.count(1.0), 3);
+    /// assert_eq!(r.count(2.0), 2);
+    /// assert_eq!(r.count(2.5), 1);
+    /// ```
+    pub fn new(label: &str, spans: &[(f64, f64)]) -> AtRisk {
+        let mut first: Vec<f64> = spans.iter().map(|s| s.0).collect();
+        let mut last: Vec<f64> = spans.iter().map(|s| s.1).collect();
+        first.sort_by(f64::total_cmp);
+        last.sort_by(f64::total_cmp);
+        AtRisk {
+            label: label.into(),
+            first,
+            last,
+        }
+    }
+
+    /// Subjects with first <= t <= last: (number started by t) - (number ended before t).
+    pub fn count(&self, t: f64) -> usize {
+        let started = self.first.partition_point(|&f| f <= t);
+        let ended = self.last.partition_point(|&l| l < t);
+        started.saturating_sub(ended)
+    }
+}
+
+/// Extra height of a plot with a numbers-at-risk row, pixels.
+const AT_RISK_ROW: f64 = 34.0;
 
 /// The plotting area of a plot, in pixels.
 #[derive(Debug, Clone, Copy)]
@@ -275,7 +327,15 @@ impl Plot {
             layers: Vec::new(),
             width: 640.0,
             height: 380.0,
+            tight_x: false,
+            at_risk: None,
         }
+    }
+
+    /// The plot with a tight x axis ([`Plot::tight_x`]).
+    pub fn tight(mut self) -> Plot {
+        self.tight_x = true;
+        self
     }
 
     /// The plot with one more layer.
@@ -308,25 +368,34 @@ impl Plot {
         let mut s = Svg::new(self.width, self.height, &self.title);
         title(&mut s, &self.title);
         let legend_w = if self.has_legend() { 190.0 } else { 0.0 };
+        let row = if self.at_risk.is_some() {
+            AT_RISK_ROW
+        } else {
+            0.0
+        };
         let frame = Frame {
             x0: 64.0,
             y0: 36.0,
             w: self.width - 64.0 - 16.0 - legend_w,
-            h: self.height - 36.0 - 48.0,
+            h: self.height - 36.0 - 48.0 - row,
         };
         let (xe, ye) = self.data_extent();
-        let (xt, yt) = (ticks(xe, 6), ticks(ye, 5));
+        let xt = x_ticks(xe, 6, self.tight_x);
+        let yt = ticks(ye, 5);
         self.draw(&mut s, frame, &xt, &yt, true);
+        if let Some(r) = &self.at_risk {
+            at_risk_row(&mut s, r, frame, &xt);
+        }
         if legend_w > 0.0 {
             legend(&mut s, &self.layers, frame.x0 + frame.w + 16.0, frame.y0);
         }
         s.finish()
     }
 
-    fn draw(&self, s: &mut Svg, f: Frame, xt: &Ticks, yt: &Ticks, y_labels: bool) {
-        let xs = Linear::new(xt.span(), (f.x0, f.x0 + f.w));
+    fn draw(&self, s: &mut Svg, f: Frame, xt: &XTicks, yt: &Ticks, y_labels: bool) {
+        let xs = Linear::new(xt.domain, (f.x0, f.x0 + f.w));
         let ys = Linear::new(yt.span(), (f.y0 + f.h, f.y0));
-        axes(s, f, &xs, &ys, xt, yt, y_labels);
+        axes(s, f, &xs, &ys, &xt.ticks, yt, y_labels);
         s.text(
             f.x0 + f.w / 2.0,
             f.y0 + f.h + 40.0,
@@ -352,6 +421,50 @@ impl Plot {
 fn ticks(e: Option<(f64, f64)>, n: usize) -> Ticks {
     let (a, b) = e.unwrap_or((0.0, 1.0));
     Ticks::loose(a, b, n)
+}
+
+/// x ticks and the axis domain: the loose ticks and their span, or (tight) the data's extent
+/// with only the ticks inside it.
+struct XTicks {
+    ticks: Ticks,
+    domain: (f64, f64),
+}
+
+fn x_ticks(e: Option<(f64, f64)>, n: usize, tight: bool) -> XTicks {
+    let loose = ticks(e, n);
+    match e {
+        Some((a, b)) if tight && b > a => {
+            let slack = 1e-9 * loose.step;
+            let mut t = loose.clone();
+            t.values.retain(|v| *v >= a - slack && *v <= b + slack);
+            XTicks {
+                ticks: t,
+                domain: (a, b),
+            }
+        }
+        _ => XTicks {
+            domain: loose.span(),
+            ticks: loose,
+        },
+    }
+}
+
+/// The numbers at risk at the x ticks, in a row under the axis title.
+fn at_risk_row(s: &mut Svg, r: &AtRisk, f: Frame, xt: &XTicks) {
+    let xs = Linear::new(xt.domain, (f.x0, f.x0 + f.w));
+    let y = f.y0 + f.h + 58.0;
+    let small = num(SMALL_FONT);
+    s.open("g", &[("font-size", &small), ("fill", "#333333")]);
+    s.text(f.x0, y, &[], &r.label);
+    for v in &xt.ticks.values {
+        s.text(
+            xs.map(*v),
+            y + 14.0,
+            &[("text-anchor", "middle")],
+            &r.count(*v).to_string(),
+        );
+    }
+    s.close();
 }
 
 fn title(s: &mut Svg, text: &str) {
@@ -636,7 +749,8 @@ pub fn small_multiples(title_text: &str, panels: &[Plot], y_title: &str, panel_w
         let (x, y) = p.data_extent();
         (union(ax, x), union(ay, y))
     });
-    let (xt, yt) = (ticks(xe, 4), ticks(ye, 5));
+    let tight = panels.iter().all(|p| p.tight_x) && !panels.is_empty();
+    let (xt, yt) = (x_ticks(xe, 4, tight), ticks(ye, 5));
     let legend_w = if panels.first().is_some_and(Plot::has_legend) {
         190.0
     } else {

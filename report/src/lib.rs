@@ -161,21 +161,25 @@ pub fn build_report(
     options: &ReportOptions,
     progress: &mut dyn FnMut(&str),
 ) -> Result<Report> {
-    let smoother = options.main_smoother()?;
+    let given = options.main_smoother()?;
     options.ranking_summary()?;
     options.variogram()?;
     options.variogram_fit()?;
+    progress("choosing the smoothing");
+    let smoothing = sections::smoothing::choose(panel, given, options)?;
     let ctx = Context {
         panel,
         columns,
         options,
-        smoother,
+        smoother: &smoothing.smoother,
+        smoothing: &smoothing,
         grid: report_grid(panel, options)?,
     };
     progress("describe");
     let (overview, description) = sections::overview::build(&ctx)?;
-    let (trend, main) = sections::trend::build(&ctx, progress)?;
-    let (individuals, flags, resid) = sections::individuals::build(&ctx, &main, progress)?;
+    let (trend, trend_numbers) = sections::trend::build(&ctx, progress)?;
+    let main = &trend_numbers.main;
+    let (individuals, flags, resid) = sections::individuals::build(&ctx, main, progress)?;
     // The variogram first: its fit is drawn beside the lag correlation.
     let (variogram, fit) = sections::variogram::build(&ctx, &resid, progress)?;
     let correlation = sections::correlation::build(&ctx, &resid, fit.as_ref(), progress);
@@ -242,10 +246,47 @@ pub fn build_report(
         Some(s) => format!("{structure_text} Covariance screening: {s} (see that section)."),
         None => structure_text,
     };
+    let change_text = match (&trend_numbers.change, &trend_numbers.change_error) {
+        (Some(c), _) if options.bootstrap_reps > 0 => format!(
+            "changes on average by {} {} over the central {}% of observation times ({} to {} \
+             {}; {}% subject-bootstrap interval {} to {})",
+            fmt(c.estimate),
+            per,
+            fmt(100.0 * c.central),
+            fmt(c.from),
+            fmt(c.to),
+            columns.time,
+            fmt(100.0 * c.level),
+            fmt(c.lower),
+            fmt(c.upper),
+        ),
+        (Some(c), _) => format!(
+            "changes on average by {} {} over the central {}% of observation times ({} to {} \
+             {}; no interval, bootstrap_reps is 0)",
+            fmt(c.estimate),
+            per,
+            fmt(100.0 * c.central),
+            fmt(c.from),
+            fmt(c.to),
+            columns.time,
+        ),
+        (None, e) => format!(
+            "has no average change to report ({})",
+            e.as_deref().unwrap_or("not computed")
+        ),
+    };
+    let binary = trajweave_core::trend::curve::is_binary(panel.response());
+    let what = if binary {
+        format!(
+            "The response {} takes two values, so the mean curve is a proportion; it",
+            columns.response
+        )
+    } else {
+        "The mean curve".to_string()
+    };
     let summary = format!(
         "{} subjects with {} observations of {}; follow-up per subject has median {} (range \
-         {} to {}) and visits per subject median {}. The mean curve ({}) changes on average \
-         by {} {} over {} {} to {}. {}.{}",
+         {} to {}) and visits per subject median {}. {} ({}, smoothing {}) {}. {}.{}",
         description.subjects,
         description.observations,
         columns.response,
@@ -253,12 +294,13 @@ pub fn build_report(
         fmt(description.follow_up.min),
         fmt(description.follow_up.max),
         fmt(description.visits_per_subject.median),
+        what,
         options.smoother,
-        fmt(sections::trend::change_per_time(&main)),
-        per,
-        columns.time,
-        fmt(main.at.first().copied().unwrap_or(f64::NAN)),
-        fmt(main.at.last().copied().unwrap_or(f64::NAN)),
+        match &smoothing.tuning {
+            Some(_) => "chosen by subject cross-validation".to_string(),
+            None => smoothing.how.clone(),
+        },
+        change_text,
         unusual_text,
         structure_text,
     );

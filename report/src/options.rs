@@ -40,7 +40,7 @@ impl std::fmt::Display for ReportValue {
 /// The option names [`ReportOptions::set`] accepts, besides `<family>.<option>` (for example
 /// `lowess.span`, `kernel.bandwidth`, `spline.df`, `super.span`), which sets that smoother's
 /// option wherever the family is used.
-pub const REPORT_OPTION_NAMES: [&str; 28] = [
+pub const REPORT_OPTION_NAMES: [&str; 31] = [
     "title",
     "smoother",
     "smoothers",
@@ -69,6 +69,9 @@ pub const REPORT_OPTION_NAMES: [&str; 28] = [
     "min_pairs",
     "screen_subjects",
     "screen_seed",
+    "tune_subjects",
+    "tune_seed",
+    "min_at_risk",
 ];
 
 /// Settings of a report. Build with `Default` and change by name with [`ReportOptions::set`].
@@ -138,6 +141,19 @@ pub struct ReportOptions {
     pub screen_subjects: usize,
     /// Seed of that subsample (default 1).
     pub screen_seed: u64,
+    /// The main smoother's smoothing is chosen by leave-one-subject-out cross-validation up
+    /// to this many subjects, and by 10-fold cross-validation over subjects above it
+    /// (default 500).
+    pub tune_subjects: usize,
+    /// Seed of the folds of that cross-validation (default 1).
+    pub tune_seed: u64,
+    /// Curves are drawn solid only where at least this many subjects are in follow-up, dashed
+    /// elsewhere (default 20; common practice, no single source).
+    pub min_at_risk: usize,
+    /// Smoother options set by hand (`<family>.<option>`): a main parameter given is used as
+    /// given, not chosen by cross-validation.
+    #[serde(skip)]
+    pub given: Vec<String>,
 }
 
 impl Default for ReportOptions {
@@ -173,6 +189,10 @@ impl Default for ReportOptions {
             min_pairs: VariogramOptions::default().min_pairs,
             screen_subjects: 20_000,
             screen_seed: 1,
+            tune_subjects: 500,
+            tune_seed: 1,
+            min_at_risk: 20,
+            given: Vec::new(),
         }
     }
 }
@@ -293,7 +313,7 @@ impl ReportOptions {
                 }
                 self.bootstrap_level = x;
             }
-            "bootstrap_seed" | "sample_seed" | "screen_seed" => {
+            "bootstrap_seed" | "sample_seed" | "screen_seed" | "tune_seed" => {
                 let s = whole(
                     name,
                     v,
@@ -304,6 +324,7 @@ impl ReportOptions {
                 match name {
                     "bootstrap_seed" => self.bootstrap_seed = s,
                     "sample_seed" => self.sample_seed = s,
+                    "tune_seed" => self.tune_seed = s,
                     _ => self.screen_seed = s,
                 }
             }
@@ -449,6 +470,14 @@ impl ReportOptions {
                 let allowed = "a whole number of subjects from 10 to 100000000";
                 self.screen_subjects = whole(name, v, 10.0, 1e8, allowed)? as usize;
             }
+            "tune_subjects" => {
+                let allowed = "a whole number of subjects from 2 to 100000000";
+                self.tune_subjects = whole(name, v, 2.0, 1e8, allowed)? as usize;
+            }
+            "min_at_risk" => {
+                let allowed = "a whole number of subjects from 1 to 1000000000";
+                self.min_at_risk = whole(name, v, 1.0, 1e9, allowed)? as usize;
+            }
             other => return self.set_family_option(other, v),
         }
         Ok(())
@@ -523,7 +552,18 @@ impl ReportOptions {
             .iter_mut()
             .find(|s| s.family() == fam)
             .ok_or_else(unknown)?;
-        s.set(opt, &value)
+        s.set(opt, &value)?;
+        if !self.given.iter().any(|g| g == name) {
+            self.given.push(name.to_string());
+        }
+        Ok(())
+    }
+
+    /// True when `<family>.<option>` was set by hand.
+    pub fn is_given(&self, family: &str, option: &str) -> bool {
+        self.given
+            .iter()
+            .any(|g| g == &format!("{family}.{option}"))
     }
 
     /// The smoother of `family` with the settings given.

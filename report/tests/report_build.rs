@@ -14,8 +14,10 @@ use trajweave_core::individuals::ranking::{pick_subjects, rank_subjects, Summary
 use trajweave_core::individuals::residuals::{residuals, MeanModel};
 use trajweave_core::individuals::sample::{sample_subjects, Strategy};
 use trajweave_core::individuals::unusual::unusual;
+use trajweave_core::trend::change::{average_change, ChangeOptions};
 use trajweave_core::trend::mean_curve::{mean_curve, BootstrapOptions};
 use trajweave_core::trend::smoother::Smoother;
+use trajweave_core::trend::tune::{tune_smoother, Tuning};
 use trajweave_core::{describe, simulate, Covariate, Missing, Panel, SimulateOptions, SubjectIds};
 use trajweave_report::{build_report, report_grid, ReportColumns, ReportOptions, ReportValue};
 
@@ -49,6 +51,9 @@ fn options() -> ReportOptions {
     let mut o = ReportOptions::default();
     o.set("bootstrap_reps", &ReportValue::Number(40.0)).unwrap();
     o.set("lowess.span", &ReportValue::Number(0.5)).unwrap();
+    // 10-fold cross-validation of the smoothing (leave-one-subject-out is the same code with
+    // one subject per fold, and slow in a debug build).
+    o.set("tune_subjects", &ReportValue::Number(100.0)).unwrap();
     o
 }
 
@@ -194,7 +199,8 @@ fn json_holds_the_estimators_numbers() {
     );
     assert_eq!(s["overview"]["gaps"], v(&d.gaps));
 
-    let kernel = Smoother::new("kernel").unwrap();
+    let (kernel, tn) = main_kernel(&p, &o);
+    assert_eq!(s["trend"]["smoothing"]["tuning"], v(&tn));
     let boot = BootstrapOptions {
         reps: 40,
         level: 0.95,
@@ -202,6 +208,16 @@ fn json_holds_the_estimators_numbers() {
     };
     let m = mean_curve(&p, &kernel, None, Some(&boot)).unwrap();
     let c = &s["trend"]["curves"];
+    let ch = average_change(
+        &p,
+        &kernel,
+        &ChangeOptions {
+            bootstrap: boot.clone(),
+            ..ChangeOptions::default()
+        },
+    )
+    .unwrap();
+    assert_eq!(c[0]["average_change"], v(&ch));
     assert_eq!(c[0]["smoother"], "kernel");
     assert_eq!(c[0]["fitted"], v(&m.fitted));
     assert_eq!(c[0]["band"], v(&m.band));
@@ -323,9 +339,32 @@ fn pooled_heat_map_and_option_errors() {
     );
 }
 
+/// The report's main smoother as a caller would choose it: the kernel bandwidth among the
+/// documented fractions of the time range by leave-one-subject-out cross-validation (at most
+/// `tune_subjects` subjects), then set.
+fn main_kernel(p: &Panel, o: &ReportOptions) -> (Smoother, Tuning) {
+    let t = p.time();
+    let range = t.iter().copied().fold(f64::NEG_INFINITY, f64::max)
+        - t.iter().copied().fold(f64::INFINITY, f64::min);
+    let cands: Vec<f64> = [0.02, 0.03, 0.05, 0.075, 0.1, 0.15, 0.2, 0.3, 0.4]
+        .iter()
+        .map(|f| f * range)
+        .collect();
+    let folds = (p.n_subjects() > o.tune_subjects).then_some(10);
+    let mut kernel = Smoother::new("kernel").unwrap();
+    let tn = tune_smoother(p, &kernel, None, &cands, folds, o.tune_seed).unwrap();
+    kernel
+        .set(
+            "bandwidth",
+            &trajweave_core::trend::curve::OptionValue::Number(tn.best),
+        )
+        .unwrap();
+    (kernel, tn)
+}
+
 /// The residuals of the report's main curve, computed as a caller would.
 fn main_residuals(p: &Panel, o: &ReportOptions) -> Vec<f64> {
-    let kernel = Smoother::new("kernel").unwrap();
+    let (kernel, _) = main_kernel(p, o);
     let boot = o.bootstrap().unwrap();
     let m = mean_curve(p, &kernel, None, boot.as_ref()).unwrap();
     residuals(p, &MeanModel::Curve(m.curve)).unwrap().residuals

@@ -4,8 +4,8 @@
 
 use serde_json::json;
 
-use super::{figure, fmt, section, value, Context};
-use crate::chart::{line, small_multiples, Layer, Plot};
+use super::{figure, fmt, section, supported_line, value, Context};
+use crate::chart::{small_multiples, AtRisk, Layer, Plot};
 use crate::html::{paragraph, table, Section};
 use crate::palette;
 use trajweave_core::covariates::bands::covariate_bands;
@@ -26,6 +26,26 @@ pub(crate) fn is_continuous(values: &[f64], levels: usize) -> bool {
         }
     }
     false
+}
+
+/// Subjects in follow-up within a covariate interval: each subject's first and last row whose
+/// covariate lies in [lower, upper].
+fn band_at_risk(panel: &Panel, name: &str, lower: f64, upper: f64) -> AtRisk {
+    let t = panel.time();
+    let spans: Vec<(f64, f64)> = match panel.covariates().iter().find(|c| c.name == name) {
+        Some(c) => (0..panel.n_subjects())
+            .filter_map(|i| {
+                let mut rows = panel
+                    .subject_rows(i)
+                    .filter(|&r| c.values[r] >= lower && c.values[r] <= upper);
+                let first = rows.next()?;
+                let last = rows.next_back().unwrap_or(first);
+                Some((t[first], t[last]))
+            })
+            .collect(),
+        None => Vec::new(),
+    };
+    AtRisk::new("", &spans)
 }
 
 /// Names of the panel's continuous covariates.
@@ -49,14 +69,16 @@ pub(crate) fn build(ctx: &Context, progress: &mut dyn FnMut(&str)) -> Result<Opt
         "Each covariate with more than {} distinct values is cut into {} equal-count \
          intervals overlapping by a fraction {} (a time-fixed covariate counts subjects, a \
          time-varying one counts rows). In each interval the {} smooth of {} on {} is drawn \
-         (solid) with the least-squares line (dashed); slopes have cluster-robust (CR1, by \
-         subject) standard errors.",
+         (solid where at least {} of the interval's subjects are in follow-up, thin dashed \
+         where fewer are) with the least-squares line (dashed); slopes have cluster-robust \
+         (CR1, by subject) standard errors.",
         o.group_levels,
         o.bands,
         fmt(o.overlap),
         o.smoother,
         ctx.columns.response,
-        ctx.columns.time
+        ctx.columns.time,
+        o.min_at_risk
     ));
     let (mut figures, mut numbers, mut skipped) = (Vec::new(), Vec::new(), Vec::new());
     for (k, name) in names.iter().enumerate() {
@@ -88,18 +110,28 @@ pub(crate) fn build(ctx: &Context, progress: &mut dyn FnMut(&str)) -> Result<Opt
                     .flatten()
                     .map(|&a| (a, tr.intercept + tr.slope * a))
                     .unzip();
-                Plot::new(
+                let risk = band_at_risk(ctx.panel, name, tr.band.lower, tr.band.upper);
+                let ok: Vec<bool> = trends
+                    .at
+                    .iter()
+                    .map(|&a| risk.count(a) >= o.min_at_risk)
+                    .collect();
+                let mut p = Plot::new(
                     &format!("{} to {}", fmt(tr.band.lower), fmt(tr.band.upper)),
                     &ctx.time_title(),
                     "",
                 )
-                .with(line(
+                .tight();
+                for l in supported_line(
                     &format!("{} smooth", o.smoother),
                     &trends.at,
                     &tr.fitted,
+                    &ok,
                     0,
-                ))
-                .with(Layer::Line {
+                ) {
+                    p = p.with(l);
+                }
+                p.with(Layer::Line {
                     name: "least-squares line".into(),
                     x: lx,
                     y: ly,

@@ -5,39 +5,90 @@
 use serde_json::json;
 
 use super::covariates::is_continuous;
-use super::{figure, fmt, section, value, Context};
-use crate::chart::{line, Plot};
+use super::{figure, fmt, section, supported_line, value, Context};
+use crate::chart::{AtRisk, Plot};
 use crate::html::{paragraph, table, Section};
 use trajweave_core::covariates::groups::{dropout_curves, group_curves, GroupCurves};
 use trajweave_core::error::Result;
 
-fn plot(title: &str, ctx: &Context, g: &GroupCurves, prefix: &str) -> String {
-    let mut p = Plot::new(title, &ctx.time_title(), &ctx.response_title());
+/// The follow-up span of each subject within each group: rows whose covariate equals the
+/// group's level, or (dropout cohorts, `level` None) the subjects whose last visit is in the
+/// cohort's bin.
+fn group_spans(ctx: &Context, g: &GroupCurves) -> Vec<AtRisk> {
+    let p = ctx.panel;
+    let t = p.time();
+    let cov = p.covariates().iter().find(|c| c.name == g.by);
+    g.groups
+        .iter()
+        .map(|c| {
+            let spans: Vec<(f64, f64)> = (0..p.n_subjects())
+                .filter_map(|i| {
+                    let rows = p.subject_rows(i);
+                    match (c.level, cov) {
+                        (Some(v), Some(cv)) => {
+                            let ts: Vec<f64> =
+                                rows.filter(|&r| cv.values[r] == v).map(|r| t[r]).collect();
+                            Some((*ts.first()?, *ts.last()?))
+                        }
+                        _ => {
+                            let (a, b) = (t[rows.start], t[rows.end - 1]);
+                            let bin = ctx.grid.bin_of(b)?;
+                            (ctx.grid.label(bin) == c.label).then_some((a, b))
+                        }
+                    }
+                })
+                .collect();
+            AtRisk::new("", &spans)
+        })
+        .collect()
+}
+
+/// Per group: the grid points where at least `min_at_risk` of its subjects are in follow-up.
+fn supported(ctx: &Context, g: &GroupCurves, risk: &[AtRisk]) -> Vec<Vec<bool>> {
+    risk.iter()
+        .map(|r| {
+            g.at.iter()
+                .map(|&a| r.count(a) >= ctx.options.min_at_risk)
+                .collect()
+        })
+        .collect()
+}
+
+fn plot(title: &str, ctx: &Context, g: &GroupCurves, prefix: &str, ok: &[Vec<bool>]) -> String {
+    let mut p = Plot::new(title, &ctx.time_title(), &ctx.response_title()).tight();
     p.width = 760.0;
     for (j, c) in g.groups.iter().enumerate() {
         let name = format!("{prefix}{} ({} subjects)", c.label, c.subjects);
-        p = p.with(line(&name, &g.at, &c.fitted, j));
+        for l in supported_line(&name, &g.at, &c.fitted, &ok[j], j) {
+            p = p.with(l);
+        }
     }
     p.svg()
 }
 
-fn rows(g: &GroupCurves) -> Vec<Vec<String>> {
+fn rows(g: &GroupCurves, ok: &[Vec<bool>]) -> Vec<Vec<String>> {
     g.groups
         .iter()
-        .map(|c| {
-            let first = g.at.iter().zip(&c.fitted).find(|(_, f)| f.is_finite());
-            let last =
+        .zip(ok)
+        .map(|(c, ok)| {
+            let solid: Vec<(f64, f64)> =
                 g.at.iter()
                     .zip(&c.fitted)
-                    .rev()
-                    .find(|(_, f)| f.is_finite());
-            let show = |p: Option<(&f64, &f64)>| p.map_or("-".into(), |(_, f)| fmt(*f));
+                    .zip(ok)
+                    .filter(|((_, f), s)| f.is_finite() && **s)
+                    .map(|((a, f), _)| (*a, *f))
+                    .collect();
+            let (span, first, last) = match (solid.first(), solid.last()) {
+                (Some(a), Some(b)) => (format!("{} to {}", fmt(a.0), fmt(b.0)), fmt(a.1), fmt(b.1)),
+                _ => ("- (too few in follow-up)".into(), "-".into(), "-".into()),
+            };
             vec![
                 c.label.clone(),
                 c.subjects.to_string(),
                 c.observations.to_string(),
-                show(first),
-                show(last),
+                span,
+                first,
+                last,
             ]
         })
         .collect()
@@ -50,13 +101,16 @@ pub(crate) fn build(ctx: &Context, progress: &mut dyn FnMut(&str)) -> Result<Sec
         "group",
         "subjects",
         "observations",
-        "first fitted",
-        "last fitted",
+        "solid over",
+        "first solid value",
+        "last solid value",
     ];
     let mut text = paragraph(&format!(
         "Mean curves ({}) fitted to each group's rows alone, drawn only over the group's own \
-         time range.",
-        o.smoother
+         time range: solid where at least {} of the group's subjects are in follow-up, dashed \
+         where fewer are (the ends of a group's curve rest on few subjects and swing). No \
+         band is drawn per group; the table gives the span each curve is supported over.",
+        o.smoother, o.min_at_risk
     ));
     let (mut figures, mut numbers, mut skipped) = (Vec::new(), Vec::new(), Vec::new());
     let categorical: Vec<String> = ctx
@@ -71,14 +125,19 @@ pub(crate) fn build(ctx: &Context, progress: &mut dyn FnMut(&str)) -> Result<Sec
         match group_curves(ctx.panel, name, ctx.smoother, None) {
             Ok(g) => {
                 let title = format!("Mean {} by {name}", ctx.columns.response);
+                let ok = supported(ctx, &g, &group_spans(ctx, &g));
                 figures.push(figure(
                     &format!("fig-group-{}", k + 1),
                     &title,
-                    plot(&title, ctx, &g, &format!("{name} = ")),
-                    format!("One curve per value of {name}."),
+                    plot(&title, ctx, &g, &format!("{name} = "), &ok),
+                    format!(
+                        "One curve per value of {name}; solid where at least {} of its \
+                         subjects are in follow-up.",
+                        o.min_at_risk
+                    ),
                 ));
                 text.push_str(&paragraph(&format!("Groups by {name}:")));
-                text.push_str(&table(&header, &rows(&g)));
+                text.push_str(&table(&header, &rows(&g, &ok)));
                 numbers.push(value(&strip(&g)));
             }
             Err(e) => skipped.push(format!("{name}: {e}")),
@@ -88,10 +147,11 @@ pub(crate) fn build(ctx: &Context, progress: &mut dyn FnMut(&str)) -> Result<Sec
     let dropout = match dropout_curves(ctx.panel, &ctx.grid, ctx.smoother, None) {
         Ok(d) => {
             let title = format!("Mean {} by dropout cohort", ctx.columns.response);
+            let ok = supported(ctx, &d, &group_spans(ctx, &d));
             figures.push(figure(
                 "fig-dropout",
                 &title,
-                plot(&title, ctx, &d, "last visit in "),
+                plot(&title, ctx, &d, "last visit in ", &ok),
                 format!(
                     "Subjects grouped by the time bin of their last visit; a cohort that left \
                      early ends early. {} subjects had their last visit outside every bin.",
@@ -101,7 +161,7 @@ pub(crate) fn build(ctx: &Context, progress: &mut dyn FnMut(&str)) -> Result<Sec
             text.push_str(&paragraph(
                 "Dropout cohorts (by the bin of the last visit):",
             ));
-            text.push_str(&table(&header, &rows(&d)));
+            text.push_str(&table(&header, &rows(&d, &ok)));
             value(&strip(&d))
         }
         Err(e) => {

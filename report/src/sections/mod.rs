@@ -9,9 +9,11 @@ pub(crate) mod groups;
 pub(crate) mod individuals;
 pub(crate) mod overview;
 pub(crate) mod screening;
+pub(crate) mod smoothing;
 pub(crate) mod trend;
 pub(crate) mod variogram;
 
+use super::chart::{line, AtRisk, Layer};
 use super::html::{Figure, Section};
 use super::options::ReportOptions;
 use super::ReportColumns;
@@ -24,8 +26,10 @@ pub(crate) struct Context<'a> {
     pub panel: &'a Panel,
     pub columns: &'a ReportColumns,
     pub options: &'a ReportOptions,
-    /// The main smoother.
+    /// The main smoother, with its smoothing as chosen.
     pub smoother: &'a Smoother,
+    /// How that smoothing was chosen.
+    pub smoothing: &'a smoothing::Choice,
     /// Time bins of the heat map and the dropout cohorts.
     pub grid: TimeGrid,
 }
@@ -57,6 +61,60 @@ fn titled(name: &str, unit: Option<&str>) -> String {
         Some(u) if !u.is_empty() && u != name => format!("{name} ({u})"),
         _ => name.to_string(),
     }
+}
+
+/// Each subject's (first, last) visit time.
+pub(crate) fn follow_up_spans(panel: &Panel) -> Vec<(f64, f64)> {
+    let t = panel.time();
+    (0..panel.n_subjects())
+        .filter_map(|i| {
+            let r = panel.subject_rows(i);
+            (!r.is_empty()).then(|| (t[r.start], t[r.end - 1]))
+        })
+        .collect()
+}
+
+/// The numbers-at-risk row of a time axis: subjects in follow-up (first <= t <= last visit).
+pub(crate) fn at_risk(panel: &Panel) -> AtRisk {
+    AtRisk::new("subjects in follow-up", &follow_up_spans(panel))
+}
+
+/// A curve drawn solid where `supported` and dashed (thinner, not in the legend) elsewhere;
+/// the two parts share their end points so the line is unbroken.
+pub(crate) fn supported_line(
+    name: &str,
+    x: &[f64],
+    y: &[f64],
+    supported: &[bool],
+    i: usize,
+) -> Vec<Layer> {
+    let n = x.len().min(y.len()).min(supported.len());
+    // The dashed part reaches one point into the solid part, so the two join.
+    let unsupported_or_next = |k: usize| {
+        !supported[k] || (k > 0 && !supported[k - 1]) || (k + 1 < n && !supported[k + 1])
+    };
+    let part = |keep: &dyn Fn(usize) -> bool| -> Vec<f64> {
+        (0..n)
+            .map(|k| if keep(k) { y[k] } else { f64::NAN })
+            .collect()
+    };
+    let mut solid = line(name, &x[..n], &part(&|k| supported[k]), i);
+    let mut faint = line("", &x[..n], &part(&unsupported_or_next), i);
+    if let Layer::Line { dashed, width, .. } = &mut faint {
+        *dashed = true;
+        *width = 1.2;
+    }
+    if supported[..n].iter().all(|&s| !s) {
+        // Nothing is supported: the whole curve dashed, still in the legend.
+        if let Layer::Line { name: nm, .. } = &mut faint {
+            *nm = format!("{name} (fewer than the minimum in follow-up)");
+        }
+        return vec![faint];
+    }
+    if let Layer::Line { dashed, .. } = &mut solid {
+        *dashed = false;
+    }
+    vec![faint, solid]
 }
 
 /// A figure from its parts.
