@@ -80,6 +80,7 @@ fixtures-check: setup
 	Rscript tests/reference/residuals_r.R --check
 	$(PY) tests/reference/residuals_py.py --check
 	$(PY) tests/reference/screen_py.py --check
+	Rscript tests/reference/screen_nlme_r.R --check
 
 # Speed: criterion per smoother, then ours vs the reference libraries side by side.
 bench: cli python r

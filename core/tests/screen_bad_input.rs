@@ -3,7 +3,7 @@
 //! Expected values are worked out by hand from the inputs below.
 
 use trajweave_core::correlation::screen::{
-    screen_structures, structure_loglik, ScreenOptions, Structure,
+    implied_correlation, screen_structures, structure_loglik, ScreenOptions, Structure,
 };
 use trajweave_core::{Missing, Panel, SubjectIds, TimeGrid};
 
@@ -54,6 +54,47 @@ fn names_and_parameters() {
     assert_eq!(e.argument(), Some("parameters"));
     let e = structure_loglik(&p, &R, Structure::Toeplitz, &[1.0, 0.5], None).unwrap_err();
     assert_eq!(e.argument(), Some("grid"));
+    // Random slope: the correlation in [-1, 1], the error variance > 0 without a serial part.
+    let s = Structure::InterceptSlopeError;
+    let e = structure_loglik(&p, &R, s, &[1.0, 0.5, 1.5, 1.0], None).unwrap_err();
+    assert_eq!(
+        e.to_string(),
+        "`parameters` = intercept_slope_correlation = 1.5 is not allowed: \
+         intercept_slope_correlation must be in [-1, 1]"
+    );
+    let e = structure_loglik(&p, &R, s, &[1.0, 0.5, 0.2, 0.0], None).unwrap_err();
+    assert!(e.to_string().contains("error_variance must be > 0"), "{e}");
+    let s = Structure::InterceptSlopeExponentialError;
+    let e = structure_loglik(&p, &R, s, &[1.0, 0.5, 0.2, 0.0, 1.0, 0.0], None).unwrap_err();
+    assert!(e
+        .to_string()
+        .contains("serial_variance + error_variance must be > 0"));
+    assert!(structure_loglik(&p, &R, s, &[0.0, 0.0, 0.0, 0.0, 1.0, 0.3], None).is_ok());
+}
+
+#[test]
+fn implied_correlation_refuses_bad_input() {
+    let s = Structure::Exponential;
+    let e = implied_correlation(s, &[1.0, 1.0], f64::NAN, &[1.0], None).unwrap_err();
+    assert_eq!((e.kind(), e.argument()), ("invalid_option", Some("time")));
+    let e = implied_correlation(s, &[1.0, 1.0], 0.0, &[1.0, f64::INFINITY], None).unwrap_err();
+    assert_eq!(e.argument(), Some("lags"));
+    let e = implied_correlation(s, &[1.0], 0.0, &[1.0], None).unwrap_err();
+    assert_eq!(e.argument(), Some("parameters"));
+    let e = implied_correlation(Structure::Toeplitz, &[1.0, 0.5], 0.0, &[1.0], None).unwrap_err();
+    assert_eq!(e.argument(), Some("grid"));
+    // On a grid: bins of t and t + u (closed form c_1 / c_0 = 0.5); NaN outside every bin.
+    let g = TimeGrid::schedule(vec![0.0, 1.0], 0.2).unwrap();
+    let c = implied_correlation(
+        Structure::Toeplitz,
+        &[2.0, 1.0],
+        0.0,
+        &[0.0, 1.1, 3.0],
+        Some(&g),
+    )
+    .unwrap();
+    assert_eq!(c[..2], [1.0, 0.5]);
+    assert!(c[2].is_nan());
 }
 
 #[test]

@@ -1,15 +1,16 @@
 //! Covariance screening against scipy (tests/fixtures/screen_loglik.json, written by
 //! tests/reference/screen_py.py): log-likelihoods at fixed parameters vs the sum over
 //! subjects of scipy.stats.multivariate_normal.logpdf, and maximised fits vs
-//! scipy.optimize.minimize of the same likelihood; closed forms for independence and for
-//! unstructured with complete data.
+//! scipy.optimize.minimize of the same likelihood, and (intercept + slope + error) vs
+//! statsmodels MixedLM; closed forms for independence, for unstructured with complete data, and
+//! for the boundary fits of residuals with no between-subject part.
 
 mod common;
 
 use common::numbers;
 use serde_json::Value;
 use trajweave_core::correlation::screen::{
-    screen_structures, structure_loglik, ScreenOptions, Structure,
+    implied_correlation, screen_structures, structure_loglik, ScreenOptions, Structure,
 };
 use trajweave_core::{Missing, Panel, SubjectIds, TimeGrid};
 
@@ -77,7 +78,7 @@ fn maxima_match_scipy_minimize() {
         grid: Some(grid(&f)),
         ..Default::default()
     };
-    for name in ["irregular", "schedule"] {
+    for name in ["irregular", "schedule", "slope"] {
         let (panel, r) = panel_of(&f, name);
         let s = screen_structures(&panel, &r, &options).unwrap();
         for want in f["maxima"].as_array().unwrap() {
@@ -100,6 +101,57 @@ fn maxima_match_scipy_minimize() {
                     fit.parameters
                 );
             }
+        }
+    }
+}
+
+#[test]
+fn implied_correlation_matches_numpy() {
+    // Source: V_01 / sqrt(V_00 V_11) of the 2 x 2 covariance built with numpy in
+    // tests/reference/screen_py.py for the times [t, t + u].
+    let f = fixture();
+    for case in f["implied"].as_array().unwrap() {
+        let s = Structure::parse(case["structure"].as_str().unwrap()).unwrap();
+        let got = implied_correlation(
+            s,
+            &numbers(&case["parameters"]),
+            case["time"].as_f64().unwrap(),
+            &numbers(&case["lags"]),
+            None,
+        )
+        .unwrap();
+        for (a, b) in got.iter().zip(numbers(&case["correlation"])) {
+            assert!((a - b).abs() < 1e-14, "{}: {got:?} vs numpy {b}", s.name());
+        }
+    }
+}
+
+#[test]
+fn intercept_slope_error_matches_statsmodels_mixedlm() {
+    // Source: statsmodels MixedLM (ML, no fixed effects, exog_re = [1, time]): its llf,
+    // cov_re (G at time 0) and scale (the error variance).
+    let f = fixture();
+    let (panel, r) = panel_of(&f, "slope");
+    let options = ScreenOptions {
+        candidates: vec![Structure::InterceptSlopeError],
+        ..Default::default()
+    };
+    let s = screen_structures(&panel, &r, &options).unwrap();
+    let fit = &s.fits[0];
+    assert!(!fit.flagged, "{fit:?}");
+    for want in f["mixedlm"].as_array().unwrap() {
+        let wl = want["loglik"].as_f64().unwrap();
+        assert!(
+            (fit.loglik - wl).abs() <= MAX_LOGLIK_TOL * wl.abs(),
+            "l = {} vs MixedLM {wl}",
+            fit.loglik
+        );
+        for (a, b) in fit.parameters.iter().zip(numbers(&want["parameters"])) {
+            assert!(
+                (a - b).abs() <= MAX_PARAM_REL_TOL * b.abs(),
+                "{:?} vs MixedLM {b}",
+                fit.parameters
+            );
         }
     }
 }

@@ -6,11 +6,18 @@ trajweave's core with scipy:
   each subject's covariance built here from its visit times (or bins);
 - maximised: scipy.optimize.minimize of minus that sum (Nelder-Mead from several starts,
   then BFGS from the best point, the best of all kept) on log-variances and log-ranges
-  (toeplitz on the raw autocovariances; unstructured on a Cholesky factor with log diagonal).
+  (toeplitz on the raw autocovariances; unstructured on a Cholesky factor with log diagonal;
+  the intercept-slope correlation through atanh);
+- the correlation each structure implies between two measurements at times t and t + u:
+  V_01 / sqrt(V_00 V_11) of the 2 x 2 covariance built here for the times [t, t + u];
+- intercept + slope + error maximised a second way, by statsmodels MixedLM (ML, no fixed
+  effects, random intercept and slope: exog_re = [1, time]).
 
-Two small generated panels are written into the fixture: an irregular one (numpy seeded
-generator; random intercept + exponential serial process + error) and one on the nominal
-schedule 0, 1, 2, 3 (tolerance 0.2) with missed visits, for toeplitz and unstructured.
+Three small generated panels are written into the fixture: an irregular one (numpy seeded
+generator; random intercept + exponential serial process + error), one on the nominal
+schedule 0, 1, 2, 3 (tolerance 0.2) with missed visits, for toeplitz and unstructured, and
+an irregular one with a random intercept and slope, exponential serial process and error
+(its own seeded generator, so the other two do not change).
 
 Run from the repository root:
 
@@ -24,6 +31,8 @@ from pathlib import Path
 
 import numpy as np
 import scipy
+import statsmodels
+import statsmodels.api as sm
 from scipy.optimize import minimize
 from scipy.stats import multivariate_normal
 
@@ -65,6 +74,24 @@ def schedule_panel(rng):
     return {"subject": subject, "time": time, "resid": resid}
 
 
+def slope_panel(rng):
+    """Random intercept and slope (G at time 0), exponential serial process, error."""
+    subject, time, resid = [], [], []
+    g = np.array([[5.0, 0.5], [0.5, 0.4]])
+    s2, phi, tau2 = 2.0, 1.0, 1.0
+    for i in range(120):
+        n = int(rng.integers(3, 11))
+        t = np.cumsum(np.concatenate([[rng.uniform(0, 0.5)], rng.uniform(0.2, 1.5, n - 1)]))
+        z = np.column_stack([np.ones(n), t])
+        d = np.abs(t[:, None] - t[None, :])
+        v = z @ g @ z.T + s2 * np.exp(-d / phi) + tau2 * np.eye(n)
+        r = rng.multivariate_normal(np.zeros(n), v)
+        subject += [i + 1] * n
+        time += [float(x) for x in t]
+        resid += [float(x) for x in r]
+    return {"subject": subject, "time": time, "resid": resid}
+
+
 def split(panel):
     """Per subject (times, residuals), subjects in id order, visits by time."""
     out = {}
@@ -94,6 +121,13 @@ def cov_irregular(name, p, t):
         return p[0] * np.exp(-((d / p[1]) ** 2))
     if name == "intercept_exponential_error":
         return p[0] + p[1] * np.exp(-d / p[2]) + p[3] * np.eye(n)
+    if name in ("intercept_slope_error", "intercept_slope_exponential_error"):
+        c = p[2] * np.sqrt(p[0] * p[1])
+        z = np.column_stack([np.ones(n), t])
+        v = z @ np.array([[p[0], c], [c, p[1]]]) @ z.T
+        if name == "intercept_slope_error":
+            return v + p[3] * np.eye(n)
+        return v + p[3] * np.exp(-d / p[4]) + p[5] * np.eye(n)
     raise ValueError(name)
 
 
@@ -155,6 +189,11 @@ def natural(name, x):
         low[np.diag_indices(k)] = np.exp(np.diag(low))
         s = low @ low.T
         return [s[a, b] for a in range(k) for b in range(a, k)]
+    if name in ("intercept_slope_error", "intercept_slope_exponential_error"):
+        # (ln nu0, ln nu1, atanh correlation, ln of the rest)
+        v = list(np.exp(x))
+        v[2] = float(np.tanh(x[2]))
+        return v
     return list(np.exp(x))
 
 
@@ -183,11 +222,26 @@ def maximise(name, subjects, starts):
             "parameters": [float(v) for v in natural(name, best.x)]}
 
 
+def mixedlm_maximum(panel):
+    """statsmodels MixedLM, ML, no fixed effects, random intercept and slope on time."""
+    r = np.array(panel["resid"])
+    t = np.array(panel["time"])
+    groups = np.array(panel["subject"])
+    model = sm.MixedLM(r, np.zeros((len(r), 0)), groups=groups,
+                       exog_re=np.column_stack([np.ones(len(r)), t]))
+    best = model.fit(reml=False, method=["bfgs"], maxiter=20000, gtol=1e-10)
+    g = np.asarray(best.cov_re)
+    return {"panel": "slope", "structure": "intercept_slope_error", "loglik": float(best.llf),
+            "parameters": [float(g[0, 0]), float(g[1, 1]),
+                           float(g[0, 1] / np.sqrt(g[0, 0] * g[1, 1])), float(best.scale)]}
+
+
 def main():
     rng = np.random.default_rng(20260)
     irregular = irregular_panel(rng)
     schedule = schedule_panel(rng)
-    irr, sch = split(irregular), split(schedule)
+    slope = slope_panel(np.random.default_rng(20261))
+    irr, sch, slo = split(irregular), split(schedule), split(slope)
     fixed_irregular = [
         ("independence", [2.0]),
         ("exchangeable", [3.0, 1.5]),
@@ -203,6 +257,27 @@ def main():
              for n, p in fixed_irregular]
     fixed += [{"panel": "schedule", "structure": n, "parameters": p, "loglik": loglik(n, p, sch)}
               for n, p in fixed_schedule]
+    fixed_slope = [
+        ("irregular", "intercept_slope_error", [4.0, 0.3, -0.4, 2.5]),
+        ("irregular", "intercept_slope_exponential_error", [3.0, 0.2, 0.5, 2.0, 1.1, 0.7]),
+        ("slope", "intercept_slope_error", [5.0, 0.4, 0.35, 3.0]),
+        ("slope", "intercept_slope_exponential_error", [5.0, 0.4, 0.35, 2.0, 1.0, 1.0]),
+        ("slope", "intercept_slope_exponential_error", [0.0, 0.5, 0.0, 1.5, 0.7, 0.0]),
+    ]
+    by_name = {"irregular": irr, "slope": slo}
+    fixed += [{"panel": pn, "structure": n, "parameters": p, "loglik": loglik(n, p, by_name[pn])}
+              for pn, n, p in fixed_slope]
+
+    implied = []
+    for name, p in fixed_irregular + [(n, q) for pn, n, q in fixed_slope if pn == "slope"]:
+        for t0 in (0.0, 2.5):
+            lags = [0.0, 0.4, 1.0, 3.0, -1.5]
+            corr = []
+            for u in lags:
+                v = cov_irregular(name, p, np.array([t0, t0 + u]))
+                corr.append(float(v[0, 1] / np.sqrt(v[0, 0] * v[1, 1])))
+            implied.append({"structure": name, "parameters": p, "time": t0, "lags": lags,
+                            "correlation": corr})
 
     ln = np.log
     maxima = [
@@ -216,15 +291,23 @@ def main():
              panel="schedule"),
         dict(maximise("unstructured", sch,
                       [list(start_chol())]), panel="schedule"),
+        dict(maximise("intercept_slope_error", slo,
+                      [[ln(5), ln(0.4), 0.3, ln(3)], [0.0, 0.0, 0.0, 0.0]]), panel="slope"),
+        dict(maximise("intercept_slope_exponential_error", slo,
+                      [[ln(5), ln(0.4), 0.3, ln(2), 0.0, ln(1)],
+                       [0.0, ln(0.2), 0.0, 0.0, ln(2), 0.0]]), panel="slope"),
     ]
     out = {
         "source": f"scipy {scipy.__version__} stats.multivariate_normal.logpdf and "
         "optimize.minimize (Nelder-Mead, BFGS), numpy "
-        f"{np.__version__}; written by tests/reference/screen_py.py",
+        f"{np.__version__}, statsmodels {statsmodels.__version__} MixedLM; written by "
+        "tests/reference/screen_py.py",
         "schedule": {"times": SCHEDULE, "tolerance": TOLERANCE},
-        "panels": {"irregular": irregular, "schedule": schedule},
+        "panels": {"irregular": irregular, "schedule": schedule, "slope": slope},
         "fixed": fixed,
         "maxima": maxima,
+        "implied": implied,
+        "mixedlm": [mixedlm_maximum(slope)],
     }
     text = json.dumps(out, indent=1) + "\n"
     if "--check" in sys.argv:

@@ -7,13 +7,14 @@ use crate::numeric::linalg::is_positive_definite;
 use crate::numeric::optimize::{bfgs, grid_brent, nelder_mead};
 
 /// Grid points of the 1-D searches.
-const GRID_POINTS: usize = 30;
+pub(crate) const GRID_POINTS: usize = 30;
 /// Exchangeable: the ratio nu2 / tau2 is searched on [1e-6, 1e6] in log scale.
 const RATIO_BOUNDS: (f64, f64) = (1e-6, 1e6);
 /// Nelder-Mead: largest vertex distance from the best at convergence (log/logit scale).
-const NM_XTOL: f64 = 1e-6;
+pub(crate) const NM_XTOL: f64 = 1e-6;
 
 /// One candidate's maximum.
+#[derive(Clone)]
 pub(crate) struct Fitted {
     pub parameters: Vec<f64>,
     pub loglik: f64,
@@ -23,7 +24,7 @@ pub(crate) struct Fitted {
 }
 
 impl Fitted {
-    fn singular(n_params: usize, iterations: usize, why: &str) -> Fitted {
+    pub(crate) fn singular(n_params: usize, iterations: usize, why: &str) -> Fitted {
         Fitted {
             parameters: vec![f64::NAN; n_params],
             loglik: f64::NEG_INFINITY,
@@ -180,7 +181,7 @@ pub(crate) fn serial(data: Data<'_>, kind: Serial, mo: &Moments, c: Control) -> 
 }
 
 /// Largest |logit| of a variance share in the intercept + exponential + error fit.
-const LOGIT_CAP: f64 = 30.0;
+pub(crate) const LOGIT_CAP: f64 = 30.0;
 
 /// Weights (nu, serial, error) = softmax(a, b, 0).
 fn weights(x: &[f64]) -> (f64, f64, f64) {

@@ -19,7 +19,10 @@
 //! profiled out analytically (c_hat = (1/N) sum_i r_i' M_i^-1 r_i). Independence is closed form
 //! (s2 = mean r^2). Exchangeable uses the determinant lemma and Sherman-Morrison per subject
 //! size, no Cholesky. Exponential alone uses its Markov property (O(n_i) per subject).
-//! Gaussian and intercept + exponential + error use a Cholesky per subject, O(n_i^3).
+//! Intercept + exponential + error and the random-slope structures (V = Z G Z' [+ s2
+//! R(phi)] + tau2 I, Z_j = (1, t_j); Laird & Ware 1982, Diggle 1988) use an exact Kalman filter
+//! on the state (intercept, [slope,] serial process), O(n_i) per subject (Jones 1993).
+//! Gaussian uses a Cholesky per subject, O(n_i^3).
 //! Toeplitz and unstructured group subjects by their pattern of observed bins; after one pass
 //! over the data each evaluation is a sum over patterns.
 //!
@@ -36,6 +39,14 @@
 //!   = the exponential fit's range or the middle of its interval, times shares 1/3 each or
 //!   0.6 / 0.2 / 0.2), then restarted once from its result with a smaller simplex; stop:
 //!   value spread <= tolerance (1 + |l|) and simplex size <= 1e-6;
+//! - intercept + slope + error, and with an exponential serial process: the scale profiled,
+//!   Nelder-Mead the same way on softmax logits of the variance shares, atanh of the
+//!   intercept-slope correlation and ln range, on time centred at its mean and scaled by its
+//!   spread; starts from per-subject least-squares lines (method of moments), the exchangeable
+//!   fit, equal shares, and for the serial version the intercept + slope + error fit split
+//!   between serial and error parts at three ranges. G is reported at time 0
+//!   ([`Screening::time_origin`]), G_0 = A G_c A' with A = [[1, -centre], [0, 1]] after undoing
+//!   the scaling;
 //! - toeplitz: BFGS with the analytic gradient dl/dc_h = sum over pairs at bin lag h of
 //!   1/2 sum_i (V_i^-1 r_i r_i' V_i^-1 - V_i^-1), on c / c_0(start), from the lag moments
 //!   (mean product of residual pairs h bins apart), shrunk toward the diagonal until positive
@@ -49,23 +60,40 @@
 //! met first. A candidate whose matrix is not positive definite at every trial (for example a
 //! pure serial structure with duplicated visit times) is reported with l = -inf and a note,
 //! ranked last.
+//!
+//! # Flags
+//! Every fit carries `at_boundary` (per parameter), `flags` (in words) and `flagged`: a
+//! variance at most [`VARIANCE_TOL`] times the mean squared residual (a slope variance times
+//! the squared spread of the visit times), a correlation within [`CORRELATION_TOL`] of +-1, a
+//! range within half a grid step of an end of its searched interval, an optimiser stopped at
+//! `max_iterations`, or l = -inf. [`implied_correlation`] gives the correlation a fitted
+//! structure implies between two measurements at t and t + u.
 
 mod binned;
 mod fit;
+mod fit_slope;
+mod flags;
+mod implied;
 mod irregular;
+mod random_slope;
 mod structures;
 
 use rayon::prelude::*;
 use serde::Serialize;
 
 pub use binned::MAX_BINS;
+pub use flags::{CORRELATION_TOL, VARIANCE_TOL};
+pub use implied::implied_correlation;
 pub use structures::Structure;
 
 use crate::data::grid::TimeGrid;
 use crate::data::panel::Panel;
 use crate::error::{Error, Result};
-use fit::{Control, Fitted, Moments};
+use fit::{Control, Fitted, Moments, GRID_POINTS};
+use fit_slope::{slope_error_starts, slope_serial_starts, SlopeMoments};
+use flags::{boundary_flags, FlagContext};
 use irregular::{loglik_at, shape_terms, Data, ExchangeableStats, Serial, Shape};
+use random_slope::{covariance_of, slope_terms, SlopeShape, TimeScale};
 
 /// Settings of [`screen_structures`].
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -165,6 +193,17 @@ pub struct StructureFit {
     pub converged: bool,
     /// A remark: a parameter at a bound, a range at the edge of its search, a singular matrix.
     pub note: Option<String>,
+    /// One per parameter: true when it lies on the boundary of its space (a variance at most
+    /// [`VARIANCE_TOL`] times the mean squared residual, a correlation within
+    /// [`CORRELATION_TOL`] of +-1, a range within half a grid step of an end of its searched
+    /// interval).
+    pub at_boundary: Vec<bool>,
+    /// Each flag in words: parameters at their boundary, an optimiser stopped at
+    /// `max_iterations`, a covariance not positive definite.
+    pub flags: Vec<String>,
+    /// True when any parameter is at its boundary, the optimiser did not converge, or
+    /// l = -inf: the fit needs care before it is read.
+    pub flagged: bool,
 }
 
 /// A candidate not fitted, and why.
@@ -187,6 +226,10 @@ pub struct Screening {
     pub subjects: usize,
     /// Number of observations N.
     pub observations: usize,
+    /// The time at which `intercept_variance` of the random-slope structures is given: the
+    /// intercept variance of the random-slope structures is the between-subject variance at
+    /// this time (time 0 of the panel's time scale, the times as given).
+    pub time_origin: f64,
 }
 
 /// Fits the candidate covariance structures to residuals by maximum likelihood and ranks them
@@ -205,7 +248,7 @@ pub struct Screening {
 /// let panel = data.to_panel()?;
 /// let r = residuals(&panel, &MeanModel::Polynomial { degree: 1 })?;
 /// let s = screen_structures(&panel, &r.residuals, &ScreenOptions::default())?;
-/// assert_eq!(s.fits.len(), 5); // toeplitz and unstructured need a grid
+/// assert_eq!(s.fits.len(), 7); // toeplitz and unstructured need a grid
 /// assert_eq!(s.skipped.len(), 2);
 /// assert_eq!(s.fits[0].delta_aic, 0.0);
 /// # Ok(()) }
@@ -246,16 +289,30 @@ pub fn screen_structures(
     };
 
     let moments = Moments::new(data);
+    let scale = TimeScale::new(data);
     let mut fitted: Vec<(Structure, Fitted)> = Vec::new();
-    let mut exponential_range = None;
+    // Results other fits start from, computed when first needed whether or not they are
+    // candidates, so a fit does not depend on which other candidates were asked for.
+    let mut exponential_range: Option<Option<f64>> = None;
+    let mut exchangeable: Option<Option<[f64; 2]>> = None;
+    let mut slope_error: Option<Fitted> = None;
+    let mut slope_moments: Option<SlopeMoments> = None;
+    let exchangeable_fit = || fit::exchangeable(data, &ExchangeableStats::new(data), control);
+    let exponential_fit = || fit::serial(data, Serial::Exponential, &moments, control);
+    let finite = |f: &Fitted| f.loglik.is_finite().then(|| f.parameters.clone());
     for &s in &Structure::ALL {
-        if !candidates.contains(&s) {
+        let needed = candidates.contains(&s)
+            || (s == Structure::InterceptSlopeError
+                && candidates.contains(&Structure::InterceptSlopeExponentialError));
+        if !needed {
             continue;
         }
         let result = match s {
             Structure::Independence => fit::independence(data),
             Structure::Exchangeable => {
-                fit::exchangeable(data, &ExchangeableStats::new(data), control)
+                let f = exchangeable_fit();
+                exchangeable = Some(finite(&f).map(|p| [p[0], p[1]]));
+                f
             }
             Structure::Exponential | Structure::Gaussian => {
                 let kind = if s == Structure::Exponential {
@@ -264,22 +321,42 @@ pub fn screen_structures(
                     Serial::Gaussian
                 };
                 let f = fit::serial(data, kind, &moments, control);
-                if s == Structure::Exponential && f.loglik.is_finite() {
-                    exponential_range = Some(f.parameters[1]);
+                if s == Structure::Exponential {
+                    exponential_range = Some(finite(&f).map(|p| p[1]));
                 }
                 f
             }
             Structure::InterceptExponentialError => {
-                let range = exponential_range.unwrap_or_else(|| {
-                    let f = fit::serial(data, Serial::Exponential, &moments, control);
-                    if f.loglik.is_finite() {
-                        f.parameters[1]
-                    } else {
-                        let (lo, hi) = moments.log_range_bounds();
-                        (0.5 * (lo + hi)).exp()
-                    }
+                let range = *exponential_range
+                    .get_or_insert_with(|| finite(&exponential_fit()).map(|p| p[1]));
+                let range = range.unwrap_or_else(|| {
+                    let (lo, hi) = moments.log_range_bounds();
+                    (0.5 * (lo + hi)).exp()
                 });
                 fit::intercept_exponential_error(data, range, &moments, control)
+            }
+            Structure::InterceptSlopeError => {
+                let ex = *exchangeable
+                    .get_or_insert_with(|| finite(&exchangeable_fit()).map(|p| [p[0], p[1]]));
+                let sm = slope_moments.get_or_insert_with(|| SlopeMoments::new(data, scale));
+                let starts = slope_error_starts(sm, ex);
+                let f = fit_slope::random_slope(data, scale, false, &starts, &moments, control);
+                slope_error = Some(f.clone());
+                if !candidates.contains(&s) {
+                    continue;
+                }
+                f
+            }
+            Structure::InterceptSlopeExponentialError => {
+                let range = *exponential_range
+                    .get_or_insert_with(|| finite(&exponential_fit()).map(|p| p[1]));
+                let sm = slope_moments.get_or_insert_with(|| SlopeMoments::new(data, scale));
+                let from_slope_error = slope_error
+                    .as_ref()
+                    .and_then(finite)
+                    .map(|p| (scale.to_scaled(covariance_of(p[0], p[1], p[2])), p[3]));
+                let starts = slope_serial_starts(sm, from_slope_error, range, &moments);
+                fit_slope::random_slope(data, scale, true, &starts, &moments, control)
             }
             Structure::Toeplitz | Structure::Unstructured => {
                 let out = patterns.as_ref().map_err(Clone::clone).and_then(|p| {
@@ -320,11 +397,23 @@ pub fn screen_structures(
 
     let k_bins = options.grid.as_ref().map_or(0, TimeGrid::n_bins);
     let ln_n = (data.n_obs() as f64).ln();
+    let (lo, hi) = moments.log_range_bounds();
+    let context = FlagContext {
+        total: data.r.iter().map(|v| v * v).sum::<f64>() / data.n_obs() as f64,
+        time_spread: scale.spread,
+        log_range: (lo, hi),
+        half_step: 0.5 * (hi - lo) / (GRID_POINTS - 1) as f64,
+        min_gap: moments.min_gap,
+        max_span: moments.max_span,
+        k_bins,
+    };
     let mut fits: Vec<StructureFit> = fitted
         .into_iter()
         .map(|(s, f)| {
             let names = s.parameter_names(k_bins);
             let p = names.len();
+            let (at_boundary, flags) =
+                boundary_flags(s, &names, &f.parameters, f.loglik, f.converged, &context);
             StructureFit {
                 structure: s.name().into(),
                 n_parameters: p,
@@ -338,6 +427,9 @@ pub fn screen_structures(
                 iterations: f.iterations,
                 converged: f.converged,
                 note: f.note,
+                flagged: !flags.is_empty(),
+                at_boundary,
+                flags,
             }
         })
         .collect();
@@ -360,6 +452,7 @@ pub fn screen_structures(
         skipped,
         subjects: data.n_subjects(),
         observations: data.n_obs(),
+        time_origin: 0.0,
     })
 }
 
@@ -449,6 +542,29 @@ pub fn structure_loglik(
                     w_tau: p[3] / c,
                 },
             )
+        }
+        Structure::InterceptSlopeError | Structure::InterceptSlopeExponentialError => {
+            let scale = TimeScale::new(data);
+            let g = scale.to_scaled(covariance_of(p[0], p[1], p[2]));
+            let shape = if structure == Structure::InterceptSlopeError {
+                SlopeShape {
+                    g,
+                    w_s: 0.0,
+                    phi: 1.0,
+                    w_tau: p[3],
+                }
+            } else {
+                SlopeShape {
+                    g,
+                    w_s: p[3],
+                    phi: p[4],
+                    w_tau: p[5],
+                }
+            };
+            match slope_terms(data, scale, shape) {
+                Some((ld, q)) => loglik_at(n, 1.0, ld, q),
+                None => f64::NEG_INFINITY,
+            }
         }
         Structure::Toeplitz | Structure::Unstructured => {
             let g = grid.ok_or_else(no_grid)?;

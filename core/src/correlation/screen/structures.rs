@@ -30,6 +30,12 @@ pub enum Structure {
     Gaussian,
     /// V = nu2 J + s2 exp(-|t_j - t_k| / phi) + tau2 I.
     InterceptExponentialError,
+    /// V = Z G Z' + tau2 I with Z_j = (1, t_j) and G the 2 x 2 covariance of a random
+    /// intercept (at time 0) and slope (Laird & Ware 1982).
+    InterceptSlopeError,
+    /// V = Z G Z' + s2 exp(-|t_j - t_k| / phi) + tau2 I (random intercept and slope,
+    /// exponential serial process, error; Diggle 1988).
+    InterceptSlopeExponentialError,
     /// V_jk = c_{|b_j - b_k|} on the bins b of a time grid.
     Toeplitz,
     /// V_jk = S_{b_j b_k} on the bins b of a time grid.
@@ -38,12 +44,14 @@ pub enum Structure {
 
 impl Structure {
     /// Every structure, in the order they are listed and fitted.
-    pub const ALL: [Structure; 7] = [
+    pub const ALL: [Structure; 9] = [
         Structure::Independence,
         Structure::Exchangeable,
         Structure::Exponential,
         Structure::Gaussian,
         Structure::InterceptExponentialError,
+        Structure::InterceptSlopeError,
+        Structure::InterceptSlopeExponentialError,
         Structure::Toeplitz,
         Structure::Unstructured,
     ];
@@ -75,6 +83,8 @@ impl Structure {
             Structure::Exponential => "exponential",
             Structure::Gaussian => "gaussian",
             Structure::InterceptExponentialError => "intercept_exponential_error",
+            Structure::InterceptSlopeError => "intercept_slope_error",
+            Structure::InterceptSlopeExponentialError => "intercept_slope_exponential_error",
             Structure::Toeplitz => "toeplitz",
             Structure::Unstructured => "unstructured",
         }
@@ -98,6 +108,20 @@ impl Structure {
                 "range",
                 "error_variance",
             ],
+            Structure::InterceptSlopeError => &[
+                "intercept_variance",
+                "slope_variance",
+                "intercept_slope_correlation",
+                "error_variance",
+            ],
+            Structure::InterceptSlopeExponentialError => &[
+                "intercept_variance",
+                "slope_variance",
+                "intercept_slope_correlation",
+                "serial_variance",
+                "range",
+                "error_variance",
+            ],
             Structure::Toeplitz => {
                 return (0..k_bins).map(|h| format!("lag_{h}")).collect();
             }
@@ -110,8 +134,18 @@ impl Structure {
         fixed.iter().map(|s| s.to_string()).collect()
     }
 
+    /// True for the structures with a random slope (their intercept variance refers to time
+    /// 0 of the panel's time scale).
+    pub fn has_random_slope(self) -> bool {
+        matches!(
+            self,
+            Structure::InterceptSlopeError | Structure::InterceptSlopeExponentialError
+        )
+    }
+
     /// Checks a parameter vector for this structure: its length, finiteness and ranges
-    /// (variances > 0, or >= 0 for the components that may vanish; ranges > 0).
+    /// (variances > 0, or >= 0 for the components that may vanish; ranges > 0; correlations
+    /// in [-1, 1]).
     pub(crate) fn check_parameters(self, p: &[f64], k_bins: usize) -> Result<()> {
         let names = self.parameter_names(k_bins);
         if p.len() != names.len() {
@@ -141,6 +175,10 @@ impl Structure {
             Structure::InterceptExponentialError => {
                 vec![(0, false), (1, false), (2, true), (3, false)]
             }
+            Structure::InterceptSlopeError => vec![(0, false), (1, false), (3, true)],
+            Structure::InterceptSlopeExponentialError => {
+                vec![(0, false), (1, false), (3, false), (4, true), (5, false)]
+            }
             Structure::Toeplitz => vec![(0, true)],
             Structure::Unstructured => (0..k_bins).map(|a| (diag_index(k_bins, a), true)).collect(),
         };
@@ -155,7 +193,19 @@ impl Structure {
                 ));
             }
         }
-        if self == Structure::InterceptExponentialError && p[1] + p[3] <= 0.0 {
+        if self.has_random_slope() && !(-1.0..=1.0).contains(&p[2]) {
+            return Err(Error::option(
+                "parameters",
+                format!("{} = {}", names[2], p[2]),
+                &format!("{} must be in [-1, 1]", names[2]),
+            ));
+        }
+        let (serial, error) = match self {
+            Structure::InterceptExponentialError => (p[1], p[3]),
+            Structure::InterceptSlopeExponentialError => (p[3], p[5]),
+            _ => (1.0, 1.0),
+        };
+        if serial + error <= 0.0 {
             return Err(Error::option(
                 "parameters",
                 "serial_variance = error_variance = 0",
