@@ -108,8 +108,8 @@ pub fn compare_variogram_fits(
             Preference::Stationary,
             if random_slope.flagged {
                 format!(
-                    "the stationary fit has no flags and the random-slope fit has (criterion \
-                     {} lower)",
+                    "the stationary fit has no flags and the random-slope fit is flagged (its \
+                     criterion is {} lower)",
                     percent(reduction)
                 )
             } else {
@@ -121,21 +121,19 @@ pub fn compare_variogram_fits(
                 )
             },
         )
+    } else if random_slope.flagged {
+        (
+            Preference::Neither,
+            "both fits are flagged: read neither as variance components".to_string(),
+        )
     } else {
         (
             Preference::Neither,
             format!(
-                "both fits are flagged{}: read neither as variance components",
-                if random_slope.flagged {
-                    String::new()
-                } else {
-                    format!(
-                        " or not better enough (the random slope lowers the criterion by {}, \
-                         less than {})",
-                        percent(reduction),
-                        percent(SLOPE_REDUCTION)
-                    )
-                }
+                "the stationary fit is flagged and the random slope lowers the criterion by \
+                 only {} (less than {}): read neither as variance components",
+                percent(reduction),
+                percent(SLOPE_REDUCTION)
             ),
         )
     };

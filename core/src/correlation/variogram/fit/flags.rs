@@ -126,8 +126,8 @@ pub(super) fn assess(f: &Facts) -> Assessed {
     if !f.random_slope && (at_cap || far_above) {
         reading.push(
             "The variogram keeps rising over the lags seen, so no stationary model fits; a \
-             random slope (fit with random_slope) or a trend left in the residuals may \
-             explain it."
+             random slope (refit with the random-slope option) or a trend left in the \
+             residuals may explain it."
                 .to_string(),
         );
     } else if f.random_slope && far_above {
