@@ -79,6 +79,8 @@ fixtures-check: setup
 	$(PY) tests/reference/covariates_py.py --check
 	Rscript tests/reference/residuals_r.R --check
 	$(PY) tests/reference/residuals_py.py --check
+	$(PY) tests/reference/variogram_slope_py.py --check
+	Rscript tests/reference/variogram_slope_r.R --check
 	$(PY) tests/reference/screen_py.py --check
 	Rscript tests/reference/screen_nlme_r.R --check
 

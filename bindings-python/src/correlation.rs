@@ -8,7 +8,9 @@ use trajweave_core::correlation::binned::{binned_correlation, CorrelationOptions
 use trajweave_core::correlation::screen::{
     screen_structures, structure_loglik, ScreenOptions, Structure,
 };
-use trajweave_core::correlation::variogram::fit::{fit_variogram, Estimate, VariogramModel};
+use trajweave_core::correlation::variogram::fit::{
+    compare_variogram_fits, fit_variogram_with, Estimate, FitOptions, VariogramModel,
+};
 use trajweave_core::correlation::variogram::{
     process_variance, variogram, Variogram, VariogramOptions,
 };
@@ -77,8 +79,31 @@ pub fn panel_variogram(
     serde_json::to_string(&v).map_err(json_err)
 }
 
+/// The core variogram of the fields a fit reads, as the front holds them.
+#[allow(clippy::too_many_arguments)] // the variogram fields a fit reads, one for one
+fn fit_input(
+    lag: Vec<f64>,
+    pairs: Vec<u64>,
+    classical: Vec<f64>,
+    robust: Vec<f64>,
+    max_lag: f64,
+    process_variance: f64,
+    time_mean: Option<f64>,
+    time_variance: Option<f64>,
+) -> PyResult<Variogram> {
+    Ok(
+        Variogram::for_fit(lag, pairs, classical, robust, max_lag, process_variance)
+            .py_err()?
+            .with_times(
+                time_mean.unwrap_or(f64::NAN),
+                time_variance.unwrap_or(f64::NAN),
+            ),
+    )
+}
+
 #[allow(clippy::too_many_arguments)] // the variogram fields a fit reads, one for one
 #[pyfunction]
+#[pyo3(signature = (lag, pairs, classical, robust, max_lag, process_variance, model, estimate, random_slope=false, time_mean=None, time_variance=None))]
 pub fn variogram_fit(
     lag: Vec<f64>,
     pairs: Vec<u64>,
@@ -88,13 +113,58 @@ pub fn variogram_fit(
     process_variance: f64,
     model: &str,
     estimate: &str,
+    random_slope: bool,
+    time_mean: Option<f64>,
+    time_variance: Option<f64>,
 ) -> PyResult<String> {
-    let vg =
-        Variogram::for_fit(lag, pairs, classical, robust, max_lag, process_variance).py_err()?;
+    let vg = fit_input(
+        lag,
+        pairs,
+        classical,
+        robust,
+        max_lag,
+        process_variance,
+        time_mean,
+        time_variance,
+    )?;
+    let options = FitOptions {
+        model: VariogramModel::parse(model).py_err()?,
+        estimate: Estimate::parse(estimate).py_err()?,
+        random_slope,
+    };
+    let f = fit_variogram_with(&vg, &options).py_err()?;
+    serde_json::to_string(&f).map_err(json_err)
+}
+
+#[allow(clippy::too_many_arguments)] // the variogram fields a fit reads, one for one
+#[pyfunction]
+#[pyo3(signature = (lag, pairs, classical, robust, max_lag, process_variance, model, estimate, time_mean=None, time_variance=None))]
+pub fn variogram_compare(
+    lag: Vec<f64>,
+    pairs: Vec<u64>,
+    classical: Vec<f64>,
+    robust: Vec<f64>,
+    max_lag: f64,
+    process_variance: f64,
+    model: &str,
+    estimate: &str,
+    time_mean: Option<f64>,
+    time_variance: Option<f64>,
+) -> PyResult<String> {
+    let vg = fit_input(
+        lag,
+        pairs,
+        classical,
+        robust,
+        max_lag,
+        process_variance,
+        time_mean,
+        time_variance,
+    )?;
     let model = VariogramModel::parse(model).py_err()?;
     let estimate = Estimate::parse(estimate).py_err()?;
-    let f = fit_variogram(&vg, model, estimate).py_err()?;
-    serde_json::to_string(&f).map_err(json_err)
+    let c = compare_variogram_fits(&vg, model, estimate).py_err()?;
+    serde_json::to_string(&c).map_err(json_err)
 }
 
 #[pyfunction]

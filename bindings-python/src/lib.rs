@@ -37,6 +37,7 @@ fn _trajweave(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(correlation::panel_binned_correlation, m)?)?;
     m.add_function(wrap_pyfunction!(correlation::panel_variogram, m)?)?;
     m.add_function(wrap_pyfunction!(correlation::variogram_fit, m)?)?;
+    m.add_function(wrap_pyfunction!(correlation::variogram_compare, m)?)?;
     m.add_function(wrap_pyfunction!(correlation::panel_process_variance, m)?)?;
     m.add_function(wrap_pyfunction!(correlation::panel_screen_structures, m)?)?;
     m.add_function(wrap_pyfunction!(correlation::panel_structure_loglik, m)?)?;

@@ -62,20 +62,22 @@ print.trajweave_variogram <- function(x, ...) {
 }
 
 # The variogram travels back to the core as the list variogram() returned.
-fit_variogram <- function(vg, model = "exponential", estimate = "classical") {
+fit_variogram <- function(vg, model = "exponential", estimate = "classical",
+                          random_slope = FALSE) {
   if (!inherits(vg, "trajweave_variogram")) {
     tw_stop_option("vg", vg, "pass a variogram made by variogram()")
   }
   if (is.character(model)) model <- enc2utf8(model)
   if (is.character(estimate)) estimate <- enc2utf8(estimate)
-  value <- tw_value(.Call(wrap__tw_fit_variogram, vg, model, estimate))
+  value <- tw_value(.Call(wrap__tw_fit_variogram, vg, model, estimate, random_slope))
   for (w in value$warnings) warning(w, call. = FALSE)
   class(value) <- "trajweave_variogram_fit"
   value
 }
 
 print.trajweave_variogram_fit <- function(x, ...) {
-  cat("<trajweave variogram fit: ", x$model, " on the ", x$estimate, " estimate, ",
+  cat("<trajweave variogram fit: ", x$model, if (x$random_slope) " with a random slope",
+    " on the ", x$estimate, " estimate, ",
     format(x$bins_used), " bins, ", if (x$converged) "converged" else "not converged",
     " after ", format(x$iterations), " iterations>\n",
     sep = ""
@@ -83,14 +85,49 @@ print.trajweave_variogram_fit <- function(x, ...) {
   shown <- c(
     "error variance (tau^2)" = x$error_variance,
     "serial variance (sigma^2)" = x$serial_variance,
-    "range (phi)" = x$range,
-    "random-intercept variance (nu^2)" = x$intercept_variance,
-    "process variance" = x$process_variance
+    "range (phi)" = x$range
   )
+  if (x$random_slope) {
+    shown <- c(shown,
+      "slope variance (omega^2)" = x$slope_variance,
+      "intercept variance at the mean visit time (nu^2)" = x$intercept_variance,
+      "mean visit time" = x$intercept_time
+    )
+  } else {
+    shown <- c(shown, "random-intercept variance (nu^2)" = x$intercept_variance)
+  }
+  shown <- c(shown, "process variance" = x$process_variance)
   for (name in names(shown)) {
     cat("  ", name, ": ", format(shown[[name]], digits = 6), "\n", sep = "")
   }
   for (w in x$warnings) cat("warning: ", w, "\n", sep = "")
+  for (f in x$flags) cat("flag: ", f, "\n", sep = "")
+  cat("reading: ", x$reading, "\n", sep = "")
+  invisible(x)
+}
+
+# Both fits (with and without a random slope) and which the documented rule prefers; no
+# warnings are raised: read each fit's flags.
+compare_variogram_fits <- function(vg, model = "exponential", estimate = "classical") {
+  if (!inherits(vg, "trajweave_variogram")) {
+    tw_stop_option("vg", vg, "pass a variogram made by variogram()")
+  }
+  if (is.character(model)) model <- enc2utf8(model)
+  if (is.character(estimate)) estimate <- enc2utf8(estimate)
+  value <- tw_value(.Call(wrap__tw_compare_variogram_fits, vg, model, estimate))
+  class(value$stationary) <- "trajweave_variogram_fit"
+  class(value$random_slope) <- "trajweave_variogram_fit"
+  class(value) <- "trajweave_variogram_comparison"
+  value
+}
+
+print.trajweave_variogram_comparison <- function(x, ...) {
+  cat("<trajweave variogram comparison: ", x$stationary$model, " model; the random slope ",
+    "lowers the criterion by ", format(100 * x$criterion_reduction, digits = 3), "%; preferred: ",
+    x$preferred, ">\n",
+    sep = ""
+  )
+  cat("reason: ", x$reason, "\n", sep = "")
   invisible(x)
 }
 

@@ -4,13 +4,15 @@
 use clap::Args;
 use trajweave_core::correlation::binned::{binned_correlation, CorrelationOptions};
 use trajweave_core::correlation::screen::{screen_structures, ScreenOptions};
-use trajweave_core::correlation::variogram::fit::{fit_variogram, Estimate, VariogramModel};
+use trajweave_core::correlation::variogram::fit::{
+    compare_variogram_fits, fit_variogram_with, Estimate, FitOptions, VariogramModel,
+};
 use trajweave_core::correlation::variogram::{variogram, VariogramOptions};
 use trajweave_core::trend::smoother::Smoother;
 use trajweave_core::TimeGrid;
 
 use crate::error::CliError;
-use crate::individuals::MeanArgs;
+use crate::individuals::{option, MeanArgs};
 use crate::{json, write_out, PanelArgs};
 
 #[derive(Args)]
@@ -92,6 +94,13 @@ pub struct VariogramArgs {
     /// Bin estimate fitted: classical (default) or robust.
     #[arg(long, default_value = "classical")]
     estimate: String,
+    /// Add a random-slope term omega^2 u^2 / 2 to the fitted model.
+    #[arg(long)]
+    random_slope: bool,
+    /// Also fit the model with and without a random slope and say which to read
+    /// ("comparison" in the output).
+    #[arg(long)]
+    compare: bool,
 }
 
 pub fn run_variogram(a: &VariogramArgs) -> Result<(), CliError> {
@@ -114,13 +123,39 @@ pub fn run_variogram(a: &VariogramArgs) -> Result<(), CliError> {
     let panel = a.panel.read()?;
     let r = a.mean.residuals(&panel)?;
     let vg = variogram(&panel, &r.residuals, &options)?;
-    let fit = model.map(|m| fit_variogram(&vg, m, estimate)).transpose()?;
+    let fit = model
+        .map(|m| {
+            fit_variogram_with(
+                &vg,
+                &FitOptions {
+                    model: m,
+                    estimate,
+                    random_slope: a.random_slope,
+                },
+            )
+        })
+        .transpose()?;
     if let Some(f) = &fit {
         for w in &f.warnings {
             eprintln!("warning: {w}");
         }
     }
-    let out = serde_json::json!({ "model": r.model, "variogram": vg, "fit": fit });
+    let comparison = match (a.compare, model) {
+        (false, _) => None,
+        (true, Some(m)) => Some(compare_variogram_fits(&vg, m, estimate)?),
+        (true, None) => {
+            return Err(option(
+                "--compare",
+                "given with --fit none",
+                "name a model with --fit to compare its fits",
+            ))
+        }
+    };
+    let mut out = serde_json::json!({ "model": r.model, "variogram": vg, "fit": fit });
+    if let Some(c) = comparison {
+        out["comparison"] =
+            serde_json::to_value(c).map_err(|e| CliError::io("json", e.to_string()))?;
+    }
     write_out(std::path::Path::new("-"), json(&out)?.as_bytes())
 }
 

@@ -467,6 +467,78 @@ fn variogram_and_correlation() {
 }
 
 #[test]
+fn variogram_with_a_random_slope_and_the_comparison() {
+    // A simulated registry (random slope SD 1.2, the CLI's own simulator), residuals from a
+    // straight line (the default mean).
+    let sim = trajweave(&["simulate", "--subjects", "600", "--seed", "3"]);
+    assert!(sim.status.success(), "{}", stderr(&sim));
+    let path = temp_csv("slope.csv", &String::from_utf8_lossy(&sim.stdout));
+    let base = [
+        "variogram",
+        path.to_str().unwrap(),
+        "--subject",
+        "patient",
+        "--time",
+        "years",
+        "--response",
+        "egfr",
+        "--max-lag",
+        "6",
+    ];
+    let mut args = base.to_vec();
+    args.extend(["--random-slope", "--compare"]);
+    let o = trajweave(&args);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let d: Value = serde_json::from_slice(&o.stdout).unwrap();
+    let (fit, vg) = (&d["fit"], &d["variogram"]);
+    assert_eq!(fit["random_slope"], true);
+    let x = |k: &str| fit[k].as_f64().unwrap();
+    let (tau2, s2, phi, w) = (
+        x("error_variance"),
+        x("serial_variance"),
+        x("range"),
+        x("slope_variance"),
+    );
+    assert!(w > 0.0);
+    // Closed forms: the curve tau^2 + sigma^2 (1 - exp(-u / phi)) + omega^2 u^2 / 2, and
+    // nu^2 = P - (tau^2 + sigma^2 + omega^2 s_t^2).
+    let lags = fit["curve_lag"].as_array().unwrap();
+    let curve = fit["curve_variogram"].as_array().unwrap();
+    for (u, g) in lags.iter().zip(curve) {
+        let u = u.as_f64().unwrap();
+        let want = tau2 + s2 * (1.0 - (-u / phi).exp()) + w * u * u / 2.0;
+        assert!((g.as_f64().unwrap() - want).abs() <= 1e-12 * want);
+    }
+    let pv = vg["process_variance"].as_f64().unwrap();
+    let nu2 = pv - (tau2 + s2 + w * vg["time_variance"].as_f64().unwrap());
+    assert!((x("intercept_variance") - nu2.max(0.0)).abs() <= 1e-12 * pv);
+    assert!(fit["curve_correlation"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .all(Value::is_null));
+    // The comparison holds the same slope fit and a stationary fit on the same bins.
+    let c = &d["comparison"];
+    assert_eq!(&c["random_slope"], fit);
+    assert_eq!(c["stationary"]["random_slope"], false);
+    let reduction = 1.0 - x("criterion") / c["stationary"]["criterion"].as_f64().unwrap();
+    assert!((c["criterion_reduction"].as_f64().unwrap() - reduction).abs() < 1e-15);
+    // Without --compare there is no comparison; with --fit none it is refused.
+    let o = trajweave(&base);
+    let d: Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert!(d.get("comparison").is_none() && d["fit"]["random_slope"] == false);
+    let mut args = base.to_vec();
+    args.extend(["--fit", "none", "--compare"]);
+    let o = trajweave(&args);
+    assert_eq!(o.status.code(), Some(2));
+    assert_eq!(
+        stderr(&o),
+        "error [invalid_option]: `--compare` = given with --fit none is not allowed: name a \
+         model with --fit to compare its fits"
+    );
+}
+
+#[test]
 fn report_from_a_file_with_settings() {
     let mut csv = String::from("id,t,<script>y</script>\n");
     for s in 0..30 {

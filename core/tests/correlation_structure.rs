@@ -102,6 +102,8 @@ fn sums_merge_across_three_partitions_of_subjects() {
         assert!(rel(a.lag[i], b.lag[i]) < 1e-12);
     }
     assert!(rel(a.process_variance, b.process_variance) < 1e-12);
+    assert!(rel(a.time_mean, b.time_mean) < 1e-12);
+    assert!(rel(a.time_variance, b.time_variance) < 1e-12);
     let whole_c = CorrelationMoments::accumulate(&p, &r, &grid).unwrap();
     let (c1, c2) = (
         whole_c

@@ -264,6 +264,52 @@ def test_correlation_structure_three_fronts(tmp_path):
         same(from_r[k], fit.to_dict()[k], rel=1e-9)
 
 
+def test_variogram_random_slope_three_fronts(tmp_path):
+    # The random-slope fit and the comparison of the two fits on the demo data: CLI = Python
+    # exactly (the same serde JSON), R's numbers within 1e-9 and its words identical.
+    base = ["--subject", "patient", "--time", "years", "--response", "egfr"]
+    v_cli = json.loads(cli("variogram", DEMO, *base, "--max-lag", "6", "--lag-bins", "12",
+                           "--random-slope", "--compare"))
+    df = pd.read_csv(DEMO)
+    panel = tw.Panel.from_frame(df, "patient", "years", "egfr")
+    r = tw.residuals(panel, tw.Polynomial(1))
+    vg = tw.variogram(panel, r, max_lag=6, lag_bins=12)
+    fit = tw.fit_variogram(vg, random_slope=True)
+    comparison = tw.compare_variogram_fits(vg)
+    assert v_cli["variogram"] == vg.to_dict()
+    assert v_cli["fit"] == fit.to_dict()
+    assert v_cli["comparison"] == comparison.to_dict()
+    code = (f'df <- read.csv("{DEMO}")\n'
+            'p <- panel_from_frame(df, "patient", "years", "egfr")\n'
+            'r <- panel_residuals(p, residuals_polynomial(1))$residuals\n'
+            'v <- variogram(p, r, max_lag = 6, lag_bins = 12)\n'
+            'f <- fit_variogram(v, random_slope = TRUE)\n'
+            'c <- compare_variogram_fits(v)\n'
+            'cat(jsonlite::toJSON(list(time_mean = v$time_mean, time_variance = v$time_variance, '
+            'error_variance = f$error_variance, serial_variance = f$serial_variance, '
+            'range = f$range, slope_variance = f$slope_variance, '
+            'intercept_variance = f$intercept_variance, intercept_time = f$intercept_time, '
+            'criterion = f$criterion, curve_variogram = f$curve$variogram, flagged = f$flagged, '
+            'flags = I(f$flags), at_boundary = I(f$at_boundary), reading = f$reading, '
+            'curve_correlation_kind = f$curve_correlation_kind, '
+            'stationary_flags = I(c$stationary$flags), stationary_reading = c$stationary$reading, '
+            'criterion_reduction = c$criterion_reduction, preferred = c$preferred, '
+            'reason = c$reason), digits = NA, na = "null", auto_unbox = TRUE))')
+    from_r = json.loads(rscript(code, tmp_path))
+    same(from_r["time_mean"], vg.time_mean, rel=R_REL_TOL)
+    same(from_r["time_variance"], vg.time_variance, rel=R_REL_TOL)
+    for k in ["error_variance", "serial_variance", "range", "slope_variance",
+              "intercept_variance", "intercept_time", "criterion"]:
+        same(from_r[k], fit.to_dict()[k], rel=1e-9)
+    same(from_r["curve_variogram"], fit.curve_variogram, rel=1e-9)
+    same(from_r["criterion_reduction"], comparison.criterion_reduction, rel=1e-9)
+    for k in ["flagged", "flags", "at_boundary", "reading", "curve_correlation_kind"]:
+        assert from_r[k] == fit.to_dict()[k], k
+    assert from_r["stationary_flags"] == comparison.stationary.flags
+    assert from_r["stationary_reading"] == comparison.stationary.reading
+    assert (from_r["preferred"], from_r["reason"]) == (comparison.preferred, comparison.reason)
+
+
 DEMO_SOURCE = "the bundled demo data (simulated; no real patient)"
 
 

@@ -103,6 +103,11 @@ def test_process_variance_vs_all_between_subject_pairs():
     assert vg.between_pairs == between.sum()
     assert close(vg.variance, np.var(r, ddof=1))
     assert close(tw.process_variance(p, r), expected)
+    # The visit-time moments over the rows of the same pairs (each pair gives both of its
+    # times), numpy.
+    both = np.concatenate([t[j][between], t[k][between]])
+    assert close(vg.time_mean, both.mean(), 1e-10)
+    assert close(vg.time_variance, both.var(), 1e-10)
 
 
 def wide_table(ids, t, r, edges):
@@ -185,6 +190,94 @@ def test_fit_variogram_vs_scipy_minimiser(model):
                  max(0.0, vg.process_variance - fit.error_variance - fit.serial_variance), 1e-12)
 
 
+def cressie_slope(theta, lag, g, n, model):
+    tau2, s2, phi, w = theta
+    rho = np.exp(-lag / phi) if model == "exponential" else np.exp(-(lag / phi) ** 2)
+    m = tau2 + s2 * (1 - rho) + w * lag ** 2 / 2
+    return np.sum(n * (g / m - 1) ** 2)
+
+
+def slope_panel(seed, subjects=800):
+    """The simulator with a random slope and no covariate slopes or dropout; residuals about
+    the known mean 58 - 1.2 t."""
+    df = tw.simulate(subjects=subjects, seed=seed, age_effect=0, female_effect=0, diabetes_slope=0,
+                     acr_slope=0, dropout_base=-40, dropout_decline=0, dialysis_threshold=-1e9)
+    p = tw.Panel.from_frame(df, "patient", "years", "egfr")
+    return p, df.egfr.to_numpy() - (58.0 - 1.2 * df.years.to_numpy())
+
+
+@pytest.mark.parametrize("model", ["exponential", "gaussian"])
+def test_random_slope_fit_vs_scipy_minimiser(model):
+    p, r = slope_panel(seed=21)
+    vg = tw.variogram(p, r, max_lag=6.0, lag_bins=15)
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")  # a clean fit raises no warning
+        fit = tw.fit_variogram(vg, model=model, random_slope=True)
+    assert fit.random_slope and fit.converged
+    lag, g, n = vg.column("lag"), vg.column("classical"), vg.column("pairs")
+    ok = ~np.isnan(g)
+    theta = [fit.error_variance, fit.serial_variance, fit.range, fit.slope_variance]
+    # The criterion recomputed with numpy at the returned parameters.
+    assert close(fit.criterion, cressie_slope(theta, lag[ok], g[ok], n[ok], model), 1e-10)
+    # scipy's bounded quasi-Newton from a perturbed start and a plain one finds no lower value.
+    for start in ([theta[0] * 1.2 + 0.1, theta[1] * 0.8, theta[2] * 1.3, theta[3] * 1.5],
+                  [np.nanmin(g) / 2, np.nanmax(g) / 4, 1.0, 0.1]):
+        best = optimize.minimize(cressie_slope, start, args=(lag[ok], g[ok], n[ok], model),
+                                 method="L-BFGS-B",
+                                 bounds=[(0, None), (1e-9, None), (1e-6, 60), (0, None)])
+        assert fit.criterion <= best.fun * (1 + 1e-6) + 1e-9
+    # nu^2 at the weighted mean visit time, closed form (docs/methods-correlation.md).
+    nu2 = vg.process_variance - (theta[0] + theta[1] + theta[3] * vg.time_variance)
+    assert close(fit.intercept_variance, max(nu2, 0.0), 1e-12)
+    assert fit.intercept_time == vg.time_mean
+    # Curves: the model in closed form; the correlation is not identified under a slope.
+    u = np.array(fit.curve_lag)
+    rho = np.exp(-u / fit.range) if model == "exponential" else np.exp(-(u / fit.range) ** 2)
+    expected = theta[0] + theta[1] * (1 - rho) + theta[3] * u ** 2 / 2
+    assert np.allclose(fit.curve_variogram, expected, rtol=1e-12, atol=0)
+    assert fit.curve_correlation == [None] * 101
+    assert fit.curve_correlation_kind == "not_identified"
+    assert close(fit.relative_misfit, math.sqrt(fit.criterion / n[ok].sum()), 1e-12)
+
+
+def test_compare_variogram_fits_is_the_two_fits_and_the_rule():
+    p, r = slope_panel(seed=5, subjects=3000)
+    vg = tw.variogram(p, r, max_lag=6.0)
+    c = tw.compare_variogram_fits(vg)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        assert c.stationary.to_dict() == tw.fit_variogram(vg).to_dict()
+        assert c.random_slope.to_dict() == tw.fit_variogram(vg, random_slope=True).to_dict()
+    # The rule of docs/methods-correlation.md, applied to the returned numbers.
+    reduction = 1 - c.random_slope.criterion / c.stationary.criterion
+    assert close(c.criterion_reduction, reduction, 1e-15)
+    assert c.stationary.criterion >= c.random_slope.criterion
+    if not c.random_slope.flagged and reduction >= 0.5:
+        assert c.preferred == "random_slope"
+    elif not c.stationary.flagged:
+        assert c.preferred == "stationary"
+    else:
+        assert c.preferred == "neither"
+    # Simulated slope SD 1.2: omega^2 = 1.44 (within 25%, our tolerance); at 3000 subjects
+    # the slope lowers the criterion by well over half (0.48-0.91 over seeds 1-20).
+    assert abs(c.random_slope.slope_variance - 1.44) < 0.25 * 1.44
+    assert c.preferred == "random_slope"
+
+
+def test_fit_flags_in_plain_words():
+    # The nu^2 case below: the variogram rises past the process variance (2.0).
+    vg = dict(lag=[0.5, 1.5, 2.5, 3.5], pairs=[100, 100, 100, 100], classical=[1.0, 2.0, 2.6, 2.9],
+              robust=[None] * 4, max_lag=4.0, process_variance=2.0)
+    with pytest.warns(UserWarning):
+        fit = tw.fit_variogram(vg)
+    assert fit.flagged and "intercept_variance" in fit.at_boundary
+    assert any(f.startswith("intercept variance nu^2 clamped at 0") for f in fit.flags)
+    # A dict without the visit-time moments: the slope fit cannot state nu^2 and says so.
+    slope = tw.fit_variogram(vg, random_slope=True)
+    assert slope.intercept_variance is None and slope.flagged
+    assert any("no visit-time variance" in f for f in slope.flags)
+
+
 def test_fit_warns_when_the_sill_exceeds_the_process_variance():
     # A variogram whose bins rise above the process variance: nu^2 would be negative.
     vg = dict(lag=[0.5, 1.5, 2.5, 3.5], pairs=[100, 100, 100, 100], classical=[1.0, 2.0, 2.6, 2.9],
@@ -192,6 +285,23 @@ def test_fit_warns_when_the_sill_exceeds_the_process_variance():
     with pytest.warns(UserWarning, match="nu\\^2 is set to 0"):
         fit = tw.fit_variogram(vg)
     assert fit.intercept_variance == 0.0
+
+
+def test_random_slope_bad_input_messages():
+    vg = dict(lag=[0.5, 1.5, 2.5], pairs=[100, 100, 100], classical=[1.0, 2.0, 2.6],
+              robust=[None] * 3, max_lag=3.0, process_variance=4.0)
+    with pytest.raises(tw.InvalidOptionError) as e:
+        tw.fit_variogram(vg, random_slope="yes")
+    assert str(e.value) == "`random_slope` = 'yes' is not allowed: True or False"
+    # Three bins fit the stationary model but not the four parameters of the slope model.
+    message = ("too few lag bins with an estimate for a variogram model fit with a random slope "
+               "(4 parameters): need at least 4, found 3")
+    with pytest.raises(tw.TooFewError) as e:
+        tw.fit_variogram(vg, random_slope=True)
+    assert str(e.value) == message
+    with pytest.raises(tw.TooFewError) as e:
+        tw.compare_variogram_fits(vg)
+    assert str(e.value) == message
 
 
 def test_smoothed_variogram_and_pair_sample():
@@ -219,6 +329,7 @@ def test_smoothed_variogram_and_pair_sample():
     (lambda p, r: tw.binned_correlation(p, r), tw.InvalidOptionError, "bins"),
     (lambda p, r: tw.binned_correlation(p, r, bins=3, min_count=1), tw.InvalidOptionError, "min_count"),
     (lambda p, r: tw.fit_variogram(tw.variogram(p, r), model="spherical"), tw.InvalidOptionError, "model"),
+    (lambda p, r: tw.compare_variogram_fits(tw.variogram(p, r), estimate="median"), tw.InvalidOptionError, "estimate"),
 ])
 def test_bad_input(call, kind, argument):
     ids, t, r = irregular(subjects=50)

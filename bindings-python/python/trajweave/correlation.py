@@ -1,6 +1,7 @@
 """Correlation structure of residuals: the binned correlation matrix with counts and Fisher
 intervals, the correlation by bin lag, the empirical variogram with the process variance, a
-variogram model fitted by weighted least squares (variance components), and candidate
+variogram model fitted by weighted least squares (variance components, optionally with a
+random slope; the two fits compared), and candidate
 covariance structures screened by likelihood (AIC, BIC).
 
 Values the core cannot estimate (a cell with too few subjects, a thin lag bin) are ``None``
@@ -16,6 +17,8 @@ arrays with NaN instead.
 >>> vg = tw.variogram(p, r, max_lag=6)
 >>> fit = tw.fit_variogram(vg)
 >>> fit.range > 0
+True
+>>> tw.compare_variogram_fits(vg).preferred in ("stationary", "random_slope", "neither")
 True
 >>> s = tw.screen_structures(p, r, candidates=["independence", "exchangeable"])
 >>> s.fits[0]["structure"]
@@ -104,18 +107,46 @@ def process_variance(panel, residuals):
     return _trajweave.panel_process_variance(panel._native, _values(panel, residuals, "residuals"))
 
 
-def fit_variogram(vg, model="exponential", estimate="classical"):
-    """gamma(u) = tau^2 + sigma^2 (1 - rho(u)) fitted to ``vg`` by Cressie's weighted least
-    squares; nu^2 = process variance - (tau^2 + sigma^2), kept >= 0. Each warning of the fit
-    is also issued as a Python ``UserWarning``."""
+def _fit_fields(vg):
+    """The variogram fields a fit reads, as the native functions take them."""
     d = vg._data if isinstance(vg, Record) else vg
+
+    def optional(name):
+        value = d.get(name)
+        return None if value is None else float(value)
+
+    return dict(lag=_nan(d["lag"]).tolist(), pairs=[int(n) for n in d["pairs"]],
+                classical=_nan(d["classical"]).tolist(), robust=_nan(d["robust"]).tolist(),
+                max_lag=float(d["max_lag"]), process_variance=float(d["process_variance"]),
+                time_mean=optional("time_mean"), time_variance=optional("time_variance"))
+
+
+def fit_variogram(vg, model="exponential", estimate="classical", random_slope=False):
+    """gamma(u) = tau^2 + sigma^2 (1 - rho(u)) fitted to ``vg`` by Cressie's weighted least
+    squares; nu^2 = process variance - (tau^2 + sigma^2), kept >= 0. With
+    ``random_slope=True`` the term omega^2 u^2 / 2 is added (``slope_variance`` = omega^2) and
+    nu^2 is the between-subject variance at ``intercept_time``. ``flagged``, ``flags``,
+    ``at_boundary`` and ``reading`` say whether the fit can be read as it stands. Each warning
+    of the fit is also issued as a Python ``UserWarning``."""
+    if not isinstance(random_slope, (bool, np.bool_)):
+        from .errors import InvalidOptionError
+
+        raise InvalidOptionError(
+            f"`random_slope` = {random_slope!r} is not allowed: True or False")
     fit = Record(json.loads(_trajweave.variogram_fit(
-        _nan(d["lag"]).tolist(), [int(n) for n in d["pairs"]], _nan(d["classical"]).tolist(),
-        _nan(d["robust"]).tolist(), float(d["max_lag"]), float(d["process_variance"]),
-        model, estimate)))
+        model=model, estimate=estimate, random_slope=bool(random_slope), **_fit_fields(vg))))
     for w in fit.warnings:
         warnings.warn(w, UserWarning, stacklevel=2)
     return fit
+
+
+def compare_variogram_fits(vg, model="exponential", estimate="classical"):
+    """``model`` fitted to ``vg`` with and without a random slope (``stationary``,
+    ``random_slope``), the relative reduction of the criterion (``criterion_reduction``) and
+    the fit the documented rule prefers (``preferred``: "stationary", "random_slope" or
+    "neither", with its ``reason``). Issues no warnings: read each fit's ``flags``."""
+    return Record(json.loads(_trajweave.variogram_compare(
+        model=model, estimate=estimate, **_fit_fields(vg))))
 
 
 def _grid_args(edges, schedule, tolerance):

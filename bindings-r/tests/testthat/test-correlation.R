@@ -158,6 +158,11 @@ test_that("variogram of ChickWeight residuals matches a base-R computation", {
   expect_identical(vg$between_pairs, as.double(sum(between)))
   expect_equal(vg$process_variance, mean(half[between]), tolerance = 1e-12)
   expect_equal(vg$variance, stats::var(cw$r), tolerance = 1e-12)
+  # Visit times over the rows of the same pairs (each pair gives both of its times).
+  idx <- which(between, arr.ind = TRUE)
+  both <- c(cw$Time[idx[, 1]], cw$Time[idx[, 2]])
+  expect_equal(vg$time_mean, mean(both), tolerance = 1e-12)
+  expect_equal(vg$time_variance, mean((both - mean(both))^2), tolerance = 1e-10)
   expect_identical(vg$subjects, 50)
   expect_identical(vg$observations, as.double(nrow(cw)))
   expect_null(vg$sample)
@@ -262,6 +267,69 @@ test_that("fit_variogram on a simulated panel: finite, a minimum of Cressie's cr
   expect_output(print(fit), "variogram fit: exponential")
 })
 
+test_that("fit_variogram with a random slope: stats::optim finds the same minimum", {
+  # The simulator with a random slope (SD 1.2) and no covariate slopes or dropout; residuals
+  # about the known mean 58 - 1.2 t.
+  s <- simulate_panel(
+    subjects = 800, seed = 21, age_effect = 0, female_effect = 0, diabetes_slope = 0,
+    acr_slope = 0, dropout_base = -40, dropout_decline = 0, dialysis_threshold = -1e9
+  )
+  p <- panel_from_frame(s, "patient", "years", "egfr")
+  r <- s$egfr - (58 - 1.2 * s$years)
+  vg <- variogram(p, r, max_lag = 6, lag_bins = 15)
+  expect_silent(fit <- fit_variogram(vg, random_slope = TRUE))
+  expect_true(fit$random_slope)
+  expect_false(fit$flagged)
+  expect_identical(fit$flags, character(0))
+  expect_identical(fit$at_boundary, character(0))
+
+  # Cressie (1985) with the slope term, recomputed in R; stats::optim (Nelder-Mead, then
+  # BFGS) from a neutral start finds the same parameters.
+  ok <- !is.na(vg$bins$classical)
+  b <- vg$bins[ok, ]
+  cressie <- function(x) {
+    m <- x[1]^2 + x[2]^2 * (1 - exp(-b$lag / exp(x[3]))) + x[4]^2 * b$lag^2 / 2
+    sum(b$pairs * (b$classical / m - 1)^2)
+  }
+  theta <- c(fit$error_variance, fit$serial_variance, fit$range, fit$slope_variance)
+  expect_equal(fit$criterion, cressie(c(sqrt(theta[1:2]), log(theta[3]), sqrt(theta[4]))),
+    tolerance = 1e-10
+  )
+  o <- stats::optim(c(2, 3, 0, 1), cressie, control = list(reltol = 1e-15, maxit = 20000))
+  o <- stats::optim(o$par, cressie, method = "BFGS", control = list(reltol = 1e-15))
+  expect_equal(c(o$par[1:2]^2, exp(o$par[3]), o$par[4]^2), theta, tolerance = 1e-4)
+
+  # nu^2 at the weighted mean visit time and the curves, closed forms.
+  nu2 <- vg$process_variance - (theta[1] + theta[2] + theta[4] * vg$time_variance)
+  expect_equal(fit$intercept_variance, max(nu2, 0), tolerance = 1e-12)
+  expect_identical(fit$intercept_time, vg$time_mean)
+  u <- fit$curve$lag
+  expect_equal(fit$curve$variogram, theta[1] + theta[2] * (1 - exp(-u / theta[3])) +
+    theta[4] * u^2 / 2, tolerance = 1e-12)
+  expect_true(all(is.na(fit$curve$correlation)))
+  expect_identical(fit$curve_correlation_kind, "not_identified")
+  expect_output(print(fit), "slope variance \\(omega\\^2\\)")
+
+  # Both fits side by side: the same as fitted one by one, and the documented rule.
+  cmp <- compare_variogram_fits(vg)
+  expect_s3_class(cmp, "trajweave_variogram_comparison")
+  expect_identical(cmp$random_slope, fit)
+  expect_identical(cmp$stationary, suppressWarnings(fit_variogram(vg)))
+  expect_equal(cmp$criterion_reduction,
+    1 - cmp$random_slope$criterion / cmp$stationary$criterion,
+    tolerance = 1e-15
+  )
+  expected <- if (!fit$flagged && cmp$criterion_reduction >= 0.5) {
+    "random_slope"
+  } else if (!cmp$stationary$flagged) {
+    "stationary"
+  } else {
+    "neither"
+  }
+  expect_identical(cmp$preferred, expected)
+  expect_output(print(cmp), "preferred: ")
+})
+
 test_that("a variogram saved and restored fits the same", {
   cw <- chick_residuals()
   p <- panel_from_frame(cw, "id", "Time", "weight")
@@ -319,6 +387,25 @@ test_that("bad input gives classed conditions with the core's messages", {
     fit_variogram(edited),
     "invalid_option",
     "`vg` = an object of class \"trajweave_variogram\" is not allowed: pass a variogram made by variogram(), unchanged in shape"
+  )
+  expect_tw_error(
+    fit_variogram(vg, random_slope = NA),
+    "invalid_option",
+    "`random_slope` = NA is not allowed: TRUE or FALSE"
+  )
+  expect_tw_error(
+    fit_variogram(vg, random_slope = c(TRUE, FALSE)),
+    "invalid_option",
+    "`random_slope` = a logical vector of length 2 is not allowed: TRUE or FALSE"
+  )
+  three <- variogram(p, d$r, lag_edges = c(0, 1.5, 3, 4.5), min_pairs = 1)
+  expect_tw_error(
+    compare_variogram_fits(three),
+    "too_few",
+    paste0(
+      "too few lag bins with an estimate for a variogram model fit with a random slope ",
+      "(4 parameters): need at least 4, found 3"
+    )
   )
   expect_tw_error(
     fit_variogram(vg, model = "spherical"),

@@ -8,7 +8,10 @@
 //! are descriptive and are not read by the fit.
 
 use extendr_api::prelude::*;
-use trajweave_core::correlation::variogram::fit::{fit_variogram, Estimate, VariogramModel};
+use trajweave_core::correlation::variogram::fit::{
+    compare_variogram_fits, fit_variogram_with, CorrelationCurve, Estimate, FitOptions,
+    Preference, VariogramFit, VariogramModel,
+};
 use trajweave_core::correlation::variogram::{
     process_variance, variogram, PairSample, Variogram, VariogramOptions,
 };
@@ -140,6 +143,8 @@ fn variogram_robj(vg: &Variogram, text: bool) -> Outcome {
             "process_variance",
             "variance",
             "between_pairs",
+            "time_mean",
+            "time_variance",
             "subjects",
             "observations",
             "sample",
@@ -156,6 +161,8 @@ fn variogram_robj(vg: &Variogram, text: bool) -> Outcome {
             vg.process_variance.into(),
             vg.variance.into(),
             vg.between_pairs.into(),
+            reals_na(&[vg.time_mean]),
+            reals_na(&[vg.time_variance]),
             (vg.subjects as f64).into(),
             (vg.observations as f64).into(),
             sample,
@@ -190,6 +197,18 @@ fn variogram_from(x: &Robj) -> Result<Variogram, Failure> {
         }
     };
     let number = |name: &str| one_number(&field(&fields, name), "vg").map_err(|_| refuse());
+    // NA (or absent, in a variogram saved before these fields existed) is NaN: the
+    // random-slope fit then flags its intercept variance as not computed.
+    let time_moment = |name: &str| -> Result<f64, Failure> {
+        match field(&fields, name) {
+            x if x.is_null() => Ok(f64::NAN),
+            x => real_slice(&x, "vg")
+                .ok()
+                .filter(|v| v.len() == 1)
+                .map(|v| if v[0].is_nan() { f64::NAN } else { v[0] })
+                .ok_or_else(refuse),
+        }
+    };
     let lower = column(&table, "lower")?;
     let upper = column(&table, "upper")?;
     let lag = column(&table, "lag")?;
@@ -248,6 +267,8 @@ fn variogram_from(x: &Robj) -> Result<Variogram, Failure> {
         process_variance: number("process_variance")?,
         variance: number("variance")?,
         between_pairs: number("between_pairs")?,
+        time_mean: time_moment("time_mean")?,
+        time_variance: time_moment("time_variance")?,
         subjects: count("subjects")? as usize,
         observations: count("observations")? as usize,
         sample,
@@ -273,13 +294,14 @@ fn sample_subjects(x: &Robj) -> Option<Vec<SubjectId>> {
 }
 
 /// Fits `model` ("exponential" or "gaussian") to the `estimate` ("classical" or "robust") bins
-/// of the variogram `vg` (its R list).
+/// of the variogram `vg` (its R list), with a random slope when `random_slope` is `TRUE`.
 #[extendr]
-fn tw_fit_variogram(vg: Robj, model: Robj, estimate: Robj) -> Robj {
-    respond(run_fit(&vg, &model, &estimate))
+fn tw_fit_variogram(vg: Robj, model: Robj, estimate: Robj, random_slope: Robj) -> Robj {
+    respond(run_fit(&vg, &model, &estimate, &random_slope))
 }
 
-fn run_fit(vg: &Robj, model: &Robj, estimate: &Robj) -> Outcome {
+/// The model and estimate arguments as the core reads them.
+fn fit_choice(model: &Robj, estimate: &Robj) -> Result<(VariogramModel, Estimate), Failure> {
     let model = VariogramModel::parse(&one_text(
         model,
         "model",
@@ -290,8 +312,76 @@ fn run_fit(vg: &Robj, model: &Robj, estimate: &Robj) -> Outcome {
         "estimate",
         "\"classical\" or \"robust\"",
     )?)?;
+    Ok((model, estimate))
+}
+
+/// Exactly one `TRUE` or `FALSE`.
+fn one_logical(x: &Robj, argument: &str) -> Result<bool, Failure> {
+    match x.as_logical_slice() {
+        Some([v]) if !v.is_na() => Ok(v.is_true()),
+        _ => Err(invalid_option(argument, value_text(x), "TRUE or FALSE")),
+    }
+}
+
+fn run_fit(vg: &Robj, model: &Robj, estimate: &Robj, random_slope: &Robj) -> Outcome {
+    let (model, estimate) = fit_choice(model, estimate)?;
+    let random_slope = one_logical(random_slope, "random_slope")?;
     let vg = variogram_from(vg)?;
-    let f = fit_variogram(&vg, model, estimate)?;
+    let f = fit_variogram_with(
+        &vg,
+        &FitOptions {
+            model,
+            estimate,
+            random_slope,
+        },
+    )?;
+    fit_robj(&f)
+}
+
+/// Fits `model` to `vg` with and without a random slope and says which to read.
+#[extendr]
+fn tw_compare_variogram_fits(vg: Robj, model: Robj, estimate: Robj) -> Robj {
+    respond(run_compare(&vg, &model, &estimate))
+}
+
+fn run_compare(vg: &Robj, model: &Robj, estimate: &Robj) -> Outcome {
+    let (model, estimate) = fit_choice(model, estimate)?;
+    let vg = variogram_from(vg)?;
+    let c = compare_variogram_fits(&vg, model, estimate)?;
+    let preferred = match c.preferred {
+        Preference::Stationary => "stationary",
+        Preference::RandomSlope => "random_slope",
+        Preference::Neither => "neither",
+    };
+    named_list(
+        [
+            "stationary",
+            "random_slope",
+            "criterion_reduction",
+            "preferred",
+            "reason",
+        ]
+        .into_iter(),
+        vec![
+            fit_robj(&c.stationary)?,
+            fit_robj(&c.random_slope)?,
+            c.criterion_reduction.into(),
+            preferred.into(),
+            c.reason.as_str().into(),
+        ],
+    )
+}
+
+fn texts(values: &[String]) -> Robj {
+    values
+        .iter()
+        .map(String::as_str)
+        .collect::<Vec<_>>()
+        .into()
+}
+
+/// A fit as an R list: every field of the core's result, the curves as one data.frame.
+fn fit_robj(f: &VariogramFit) -> Outcome {
     let curve = data_frame(
         ["lag", "variogram", "serial_correlation", "correlation"].into_iter(),
         vec![
@@ -302,45 +392,59 @@ fn run_fit(vg: &Robj, model: &Robj, estimate: &Robj) -> Outcome {
         ],
         f.curve_lag.len(),
     )?;
-    let estimate = match f.estimate {
-        Estimate::Classical => "classical",
-        Estimate::Robust => "robust",
+    let kind = match f.curve_correlation_kind {
+        CorrelationCurve::Stationary => "stationary",
+        CorrelationCurve::NotIdentified => "not_identified",
     };
     named_list(
         [
             "model",
             "estimate",
+            "random_slope",
             "error_variance",
             "serial_variance",
             "range",
+            "slope_variance",
             "intercept_variance",
+            "intercept_time",
             "process_variance",
             "criterion",
+            "relative_misfit",
             "bins_used",
             "iterations",
             "converged",
             "warnings",
+            "at_boundary",
+            "flagged",
+            "flags",
+            "reading",
             "curve",
+            "curve_correlation_kind",
         ]
         .into_iter(),
         vec![
             f.model.name().into(),
-            estimate.into(),
+            f.estimate.name().into(),
+            f.random_slope.into(),
             f.error_variance.into(),
             f.serial_variance.into(),
             f.range.into(),
-            f.intercept_variance.into(),
+            f.slope_variance.into(),
+            reals_na(&[f.intercept_variance]),
+            reals_na(&[f.intercept_time]),
             f.process_variance.into(),
             f.criterion.into(),
+            f.relative_misfit.into(),
             (f.bins_used as f64).into(),
             (f.iterations as f64).into(),
             f.converged.into(),
-            f.warnings
-                .iter()
-                .map(String::as_str)
-                .collect::<Vec<_>>()
-                .into(),
+            texts(&f.warnings),
+            texts(&f.at_boundary),
+            f.flagged.into(),
+            texts(&f.flags),
+            f.reading.as_str().into(),
             curve,
+            kind.into(),
         ],
     )
 }
@@ -362,5 +466,6 @@ extendr_module! {
     mod variogram;
     fn tw_variogram;
     fn tw_fit_variogram;
+    fn tw_compare_variogram_fits;
     fn tw_process_variance;
 }

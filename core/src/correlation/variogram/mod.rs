@@ -286,6 +286,7 @@ impl VariogramSums {
             _ => self.lags.clone(),
         };
         let m = lags.cells.len();
+        let (time_mean, time_variance) = self.process.time_moments();
         let mut out = Variogram {
             lower: lags.edges[..m].to_vec(),
             upper: lags.edges[1..].to_vec(),
@@ -300,6 +301,8 @@ impl VariogramSums {
             process_variance: self.process.process_variance(),
             variance: self.process.variance(),
             between_pairs: self.process.between_pairs(),
+            time_mean,
+            time_variance,
             subjects: self.subjects,
             observations: self.process.n as usize,
             sample: None,
@@ -363,6 +366,12 @@ pub struct Variogram {
     pub variance: f64,
     /// Number of between-subject pairs.
     pub between_pairs: f64,
+    /// Mean of the visit times, each visit weighted by its number of between-subject pairs
+    /// (n - n_i), as in the process variance.
+    pub time_mean: f64,
+    /// Variance of the visit times under the same weights (the random-slope model's
+    /// intercept variance at `time_mean` needs it).
+    pub time_variance: f64,
     /// Subjects.
     pub subjects: usize,
     /// Observations.
@@ -378,7 +387,9 @@ pub struct Variogram {
 impl Variogram {
     /// A variogram rebuilt from the fields a fit needs, as a front holds them (mean lag, pairs,
     /// classical and robust estimates per bin with NaN where absent, the maximum lag and the
-    /// process variance), so [`fit::fit_variogram`] gives the same fit from any front.
+    /// process variance), so [`fit::fit_variogram`] gives the same fit from any front. The
+    /// weighted visit-time moments start as NaN; set them with [`Variogram::with_times`] (the
+    /// random-slope fit needs them for the intercept variance).
     ///
     /// # Errors
     /// [`Error::LengthMismatch`] when the per-bin fields differ in length from `lag`;
@@ -423,12 +434,32 @@ impl Variogram {
             process_variance,
             variance: f64::NAN,
             between_pairs: f64::NAN,
+            time_mean: f64::NAN,
+            time_variance: f64::NAN,
             subjects: 0,
             observations: 0,
             sample: None,
             smoothed: None,
             smoothed_pairs: 0,
         })
+    }
+
+    /// The same variogram with the weighted visit-time mean and variance set (the fields
+    /// `time_mean` and `time_variance` as [`variogram`] reports them).
+    ///
+    /// # Examples
+    /// ```
+    /// use trajweave_core::correlation::variogram::Variogram;
+    /// # fn main() -> trajweave_core::Result<()> {
+    /// let vg = Variogram::for_fit(vec![1.0, 2.0, 3.0], vec![40; 3], vec![2.0, 3.0, 3.5],
+    ///     vec![2.0, 3.0, 3.5], 3.0, 6.0)?.with_times(2.5, 4.0);
+    /// assert_eq!((vg.time_mean, vg.time_variance), (2.5, 4.0));
+    /// # Ok(()) }
+    /// ```
+    pub fn with_times(mut self, mean: f64, variance: f64) -> Variogram {
+        self.time_mean = mean;
+        self.time_variance = variance;
+        self
     }
 }
 

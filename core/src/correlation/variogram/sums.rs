@@ -25,6 +25,12 @@ pub struct LagSums {
 /// same per subject gives the within-subject part; their difference is the between-subject
 /// sum. Values are combined by Chan, Golub & LeVeque's (1979) update of (n, mean, sum of
 /// squares), so partitions merge exactly up to rounding.
+///
+/// The visit times are summed alongside, so that the mean and variance of the times can be
+/// weighted as the process variance weights its rows: a visit of subject i lies in n - n_i
+/// between-subject pairs, so its weight is n - n_i, and sum_a (n - n_i(a)) t_a =
+/// n sum t - sum_i n_i sum_(a in i) t_a (likewise for t^2). The random-slope variogram model
+/// needs them (see [`super::fit`]).
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct ProcessSums {
     /// Number of values.
@@ -37,6 +43,14 @@ pub struct ProcessSums {
     pub within: f64,
     /// Number of within-subject pairs.
     pub within_pairs: f64,
+    /// Sum of the visit times.
+    pub time_sum: f64,
+    /// Sum of the squared visit times.
+    pub time_sq_sum: f64,
+    /// Sum over subjects of n_i times the sum of their visit times.
+    pub sized_time_sum: f64,
+    /// Sum over subjects of n_i times the sum of their squared visit times.
+    pub sized_time_sq_sum: f64,
 }
 
 impl ProcessSums {
@@ -48,15 +62,24 @@ impl ProcessSums {
             m2: 0.0,
             within: 0.0,
             within_pairs: 0.0,
+            time_sum: 0.0,
+            time_sq_sum: 0.0,
+            sized_time_sum: 0.0,
+            sized_time_sq_sum: 0.0,
         }
     }
 
-    /// Adds one subject's values.
-    pub fn add_subject(&mut self, r: &[f64]) {
+    /// Adds one subject's visit times `t` and values `r` (of equal length).
+    pub fn add_subject(&mut self, t: &[f64], r: &[f64]) {
         let n = r.len() as f64;
         if r.is_empty() {
             return;
         }
+        let (s1, s2) = t.iter().fold((0.0, 0.0), |(a, b), &x| (a + x, b + x * x));
+        self.time_sum += s1;
+        self.time_sq_sum += s2;
+        self.sized_time_sum += n * s1;
+        self.sized_time_sq_sum += n * s2;
         let mean = r.iter().sum::<f64>() / n;
         let m2: f64 = r.iter().map(|x| (x - mean) * (x - mean)).sum();
         self.within += n * m2;
@@ -79,6 +102,10 @@ impl ProcessSums {
     pub fn merge(&mut self, other: &ProcessSums) {
         self.within += other.within;
         self.within_pairs += other.within_pairs;
+        self.time_sum += other.time_sum;
+        self.time_sq_sum += other.time_sq_sum;
+        self.sized_time_sum += other.sized_time_sum;
+        self.sized_time_sq_sum += other.sized_time_sq_sum;
         self.merge_moments(other.n, other.mean, other.m2);
     }
 
@@ -95,6 +122,20 @@ impl ProcessSums {
         } else {
             f64::NAN
         }
+    }
+
+    /// Mean and variance of the visit times, each visit weighted by its number of
+    /// between-subject pairs n - n_i, as in the process variance (NaN when there are no such
+    /// pairs). The variance is the weighted mean square about the weighted mean, >= 0.
+    pub fn time_moments(&self) -> (f64, f64) {
+        // sum_a (n - n_i) = n^2 - sum_i n_i^2 = 2 x between-subject pairs.
+        let weight = 2.0 * self.between_pairs();
+        if weight <= 0.0 {
+            return (f64::NAN, f64::NAN);
+        }
+        let mean = (self.n * self.time_sum - self.sized_time_sum) / weight;
+        let second = (self.n * self.time_sq_sum - self.sized_time_sq_sum) / weight;
+        (mean, (second - mean * mean).max(0.0))
     }
 
     /// Sample variance (n - 1) of all values.
@@ -263,7 +304,8 @@ pub(crate) fn process_sums(panel: &Panel, residuals: &[f64]) -> ProcessSums {
         .map(|&first| {
             let mut p = ProcessSums::new();
             for i in first..(first + block).min(s) {
-                p.add_subject(&residuals[panel.subject_rows(i)]);
+                let rows = panel.subject_rows(i);
+                p.add_subject(&panel.time()[rows.clone()], &residuals[rows]);
             }
             p
         })
@@ -292,7 +334,7 @@ fn add_pairs(
     for i in subjects {
         let rows = panel.subject_rows(i);
         let (t, r) = (&time[rows.clone()], &residuals[rows]);
-        process.add_subject(r);
+        process.add_subject(t, r);
         for j in 0..t.len() {
             let (tj, rj) = (t[j], r[j]);
             for k in j + 1..t.len() {
