@@ -28,6 +28,7 @@ pub use options::{ReportOptions, ReportValue, REPORT_OPTION_NAMES};
 pub use sections::individuals::{pool_rows, PooledGrid};
 
 use sections::{fmt, Context};
+use trajweave_core::correlation::screen::Screening;
 use trajweave_core::data::grid::TimeGrid;
 use trajweave_core::data::panel::Panel;
 use trajweave_core::error::Result;
@@ -180,10 +181,14 @@ pub fn build_report(
     let (trend, trend_numbers) = sections::trend::build(&ctx, progress)?;
     let main = &trend_numbers.main;
     let (individuals, flags, resid) = sections::individuals::build(&ctx, main, progress)?;
-    // The variogram first: its fit is drawn beside the lag correlation.
-    let (variogram, fit) = sections::variogram::build(&ctx, &resid, progress)?;
-    let correlation = sections::correlation::build(&ctx, &resid, fit.as_ref(), progress);
-    let (screening, suggestion) = sections::screening::build(&ctx, &resid, progress)?;
+    let (variogram, vario) = sections::variogram::build(&ctx, &resid, progress)?;
+    // The screening before the correlation: its best unflagged structure's implied
+    // correlation is drawn beside the lag correlation.
+    let (screening, screened) = sections::screening::build(&ctx, &resid, progress)?;
+    let implied = screened
+        .as_ref()
+        .and_then(|s| sections::screening::implied_line(&ctx, s));
+    let correlation = sections::correlation::build(&ctx, &resid, implied.as_ref(), progress);
     let mut all = vec![
         overview,
         trend,
@@ -218,34 +223,12 @@ pub fn build_report(
             }
         ),
     };
-    let structure_text = match &fit {
-        Some(f) => {
-            let s = sections::variogram::Shares::of(f);
-            format!(
-                " Of the residual variance (nu^2 + sigma^2 + tau^2 of the {} variogram fit), \
-                 {}% is between subjects (random intercept), {}% serial correlation (range {} \
-                 {}) and {}% measurement error{}.",
-                f.model.name(),
-                fmt(100.0 * s.intercept),
-                fmt(100.0 * s.serial),
-                fmt(f.range),
-                columns.time_unit.as_deref().unwrap_or("time units"),
-                fmt(100.0 * s.error),
-                match f.warnings.len() {
-                    0 => String::new(),
-                    n => format!(
-                        "; the fit gave {n} warning{} (see the variogram section)",
-                        if n == 1 { "" } else { "s" }
-                    ),
-                }
-            )
-        }
-        None => String::new(),
-    };
-    let structure_text = match &suggestion {
-        Some(s) => format!("{structure_text} Covariance screening: {s} (see that section)."),
-        None => structure_text,
-    };
+    let unit = columns.time_unit.as_deref().unwrap_or("time units");
+    let structure_text = format!(
+        "{}{}",
+        screening_summary(screened.as_ref(), unit),
+        variogram_summary(&vario, unit)
+    );
     let change_text = match (&trend_numbers.change, &trend_numbers.change_error) {
         (Some(c), _) if options.bootstrap_reps > 0 => format!(
             "changes on average by {} {} over the central {}% of observation times ({} to {} \
@@ -325,6 +308,109 @@ pub fn build_report(
         "sections": by_id,
     });
     Ok(Report { html, json })
+}
+
+/// The screening's reading for the summary: the best unflagged structure with its variance
+/// components, and what ranked above it but is flagged; nothing from a flagged fit as a finding.
+fn screening_summary(screened: Option<&Screening>, unit: &str) -> String {
+    let Some(s) = screened else {
+        return String::new();
+    };
+    let Some(best) = sections::screening::best_unflagged(s) else {
+        return " Covariance screening: every fitted structure carries a flag (a parameter at \
+                a boundary or no convergence), so no structure is suggested (see that section)."
+            .into();
+    };
+    let get = |name: &str| {
+        best.parameter_names
+            .iter()
+            .position(|n| n == name)
+            .map(|k| best.parameters[k])
+    };
+    let mut parts = Vec::new();
+    match (get("intercept_variance"), get("slope_variance")) {
+        (Some(v0), Some(v1)) => {
+            parts.push(format!(
+                "between-subject variance {} at time {} and slope variance {} per {} squared \
+                 (intercept-slope correlation {})",
+                fmt(v0),
+                fmt(s.time_origin),
+                fmt(v1),
+                unit.trim_end_matches('s'),
+                fmt(get("intercept_slope_correlation").unwrap_or(f64::NAN))
+            ));
+        }
+        (Some(v0), None) => parts.push(format!("between-subject variance {}", fmt(v0))),
+        _ => {}
+    }
+    if let (Some(sv), Some(r)) = (get("serial_variance").or(get("variance")), get("range")) {
+        parts.push(format!(
+            "serial variance {} with range {} {unit}",
+            fmt(sv),
+            fmt(r)
+        ));
+    }
+    if let Some(e) = get("error_variance") {
+        parts.push(format!("measurement-error variance {}", fmt(e)));
+    }
+    let flagged_above: Vec<String> = s
+        .fits
+        .iter()
+        .take_while(|f| f.flagged)
+        .map(|f| sections::screening::words(&f.structure))
+        .collect();
+    format!(
+        " Covariance screening (maximum likelihood on the residuals of {} subjects, ranked by \
+         AIC) reads {} as best{}{}.",
+        s.subjects,
+        sections::screening::words(&best.structure),
+        if parts.is_empty() {
+            String::new()
+        } else {
+            format!(": {}", parts.join(", "))
+        },
+        if flagged_above.is_empty() {
+            String::new()
+        } else {
+            format!(
+                "; {} ranked higher but sat at a boundary or did not converge, so it is not \
+                 read (see that section)",
+                flagged_above.join(", ")
+            )
+        }
+    )
+}
+
+/// The variogram's reading for the summary: the components of the fit the comparison reads,
+/// or in plain words why none is read.
+fn variogram_summary(v: &sections::variogram::Outcome, unit: &str) -> String {
+    let Some(c) = &v.comparison else {
+        return String::new();
+    };
+    match &v.chosen {
+        Some(f) if f.random_slope => format!(
+            " The variogram keeps rising with the lag, as a random slope makes it: the fit with \
+             a random slope is read (slope variance {} per {} squared, serial range {} {unit}).",
+            fmt(f.slope_variance),
+            unit.trim_end_matches('s'),
+            fmt(f.range)
+        ),
+        Some(f) => {
+            let sh = sections::variogram::Shares::of(f);
+            format!(
+                " The stationary variogram fit splits the residual variance into {}% between \
+                 subjects, {}% serial correlation (range {} {unit}) and {}% measurement error.",
+                fmt(100.0 * sh.intercept),
+                fmt(100.0 * sh.serial),
+                fmt(f.range),
+                fmt(100.0 * sh.error)
+            )
+        }
+        None => format!(
+            " No variogram fit is read, since both carry flags: {}",
+            c.stationary.reading
+        ),
+    }
 }
 
 fn flags_summary_name(options: &ReportOptions) -> String {

@@ -5,7 +5,9 @@
 use serde_json::{json, Value};
 use trajweave_core::correlation::binned::{binned_correlation, CorrelationOptions};
 use trajweave_core::correlation::screen::{screen_structures, ScreenOptions, Screening, Structure};
-use trajweave_core::correlation::variogram::fit::{fit_variogram, Estimate, VariogramModel};
+use trajweave_core::correlation::variogram::fit::{
+    compare_variogram_fits, fit_variogram, Estimate, Preference, VariogramModel,
+};
 use trajweave_core::correlation::variogram::{variogram, LagBins, VariogramOptions};
 use trajweave_core::covariates::bands::covariate_bands;
 use trajweave_core::covariates::conditional::conditional_trends;
@@ -448,40 +450,64 @@ fn correlation_sections_hold_the_estimators_numbers() {
         }
     }
     assert!((vg.process_variance - sum / pairs as f64).abs() < 1e-9 * vg.process_variance);
-    // Outside reference: the exponential model's closed form tau^2 + sigma^2 (1 - exp(-u/phi))
-    // at each bin's mean lag, and the shares of nu^2, sigma^2, tau^2 in their sum.
+    // Both fits and the verdict, as the estimator gives them called alone.
+    let cmp =
+        compare_variogram_fits(&vg, VariogramModel::Exponential, Estimate::Classical).unwrap();
+    assert_eq!(sv["comparison"], v(&cmp));
+    let chosen = match cmp.preferred {
+        Preference::Stationary => Some(&cmp.stationary),
+        Preference::RandomSlope => Some(&cmp.random_slope),
+        Preference::Neither => None,
+    };
+    assert_eq!(sv["chosen"], v(&chosen));
+    // Outside reference: the model's closed form tau^2 + sigma^2 (1 - exp(-u/phi)) + omega^2
+    // u^2 / 2 at each bin's mean lag (omega^2 = 0 for the stationary fit), and the shares of
+    // nu^2, sigma^2, tau^2 in their sum.
+    let f = chosen.unwrap_or(&fit);
     let closed: Vec<f64> = vg
         .lag
         .iter()
-        .map(|u| fit.error_variance + fit.serial_variance * (1.0 - (-u / fit.range).exp()))
+        .map(|u| {
+            f.error_variance
+                + f.serial_variance * (1.0 - (-u / f.range).exp())
+                + f.slope_variance * u * u / 2.0
+        })
         .collect();
     for (j, want) in closed.iter().enumerate() {
         let got = sv["fitted_at_bins"][j].as_f64().unwrap();
         assert!((got - want).abs() <= 1e-12 * want.abs().max(1.0));
     }
-    let total = fit.intercept_variance + fit.serial_variance + fit.error_variance;
-    assert_eq!(sv["shares"]["total"], json!(total));
-    let share_sum: f64 = ["intercept", "serial", "error"]
-        .iter()
-        .map(|k| sv["shares"][k].as_f64().unwrap())
-        .sum();
-    assert!((share_sum - 1.0).abs() < 1e-12);
-    assert_eq!(
-        sv["shares"]["error"].as_f64().unwrap(),
-        fit.error_variance / total
-    );
-    // The fit's warnings are in the text, the shares in the summary.
-    for w in &fit.warnings {
+    let summary = r.json["summary"].as_str().unwrap();
+    match chosen {
+        Some(f) => {
+            let total = f.intercept_variance + f.serial_variance + f.error_variance;
+            assert_eq!(sv["shares"]["total"], json!(total));
+            let share_sum: f64 = ["intercept", "serial", "error"]
+                .iter()
+                .map(|k| sv["shares"][k].as_f64().unwrap())
+                .sum();
+            assert!((share_sum - 1.0).abs() < 1e-12);
+            assert!(!f.flagged);
+            if f.random_slope {
+                assert!(
+                    summary.contains("the fit with a random slope is read"),
+                    "{summary}"
+                );
+            } else {
+                assert!(summary.contains("% between subjects"), "{summary}");
+            }
+        }
+        None => {
+            assert_eq!(sv["shares"], Value::Null);
+            assert!(summary.contains("No variogram fit is read"), "{summary}");
+        }
+    }
+    // Every flag of both fits is shown in the section's table.
+    for w in cmp.stationary.flags.iter().chain(&cmp.random_slope.flags) {
         assert!(
             r.html.contains(&w.replace('\'', "&#39;")),
-            "warning {w} not shown"
+            "flag {w} not shown"
         );
-    }
-    let summary = r.json["summary"].as_str().unwrap();
-    assert!(summary.contains("measurement error"), "{summary}");
-    assert!(summary.contains("% is between subjects (random intercept)"));
-    if !fit.warnings.is_empty() {
-        assert!(summary.contains("see the variogram section"));
     }
     // Pair counts label the points (20 bins) and fill the bar strip.
     let fig = figure_of(&r.html, "fig-variogram");
@@ -536,10 +562,18 @@ fn correlation_options_by_name_reach_the_estimators() {
     assert_eq!(s["variogram"]["variogram"], v(&vg));
     assert_eq!(s["variogram"]["fit"], v(&fit));
     assert_eq!(s["variogram"]["model"], "gaussian");
-    // Outside reference: the Gaussian model's closed form tau^2 + sigma^2 (1 - exp(-(u/phi)^2)).
+    let cmp = compare_variogram_fits(&vg, VariogramModel::Gaussian, Estimate::Robust).unwrap();
+    assert_eq!(s["variogram"]["comparison"], v(&cmp));
+    let f = match cmp.preferred {
+        Preference::RandomSlope => &cmp.random_slope,
+        _ => &cmp.stationary,
+    };
+    // Outside reference: the Gaussian model's closed form tau^2 + sigma^2 (1 - exp(-(u/phi)^2))
+    // + omega^2 u^2 / 2.
     for (j, u) in vg.lag.iter().enumerate() {
-        let want = fit.error_variance
-            + fit.serial_variance * (1.0 - (-(u / fit.range) * (u / fit.range)).exp());
+        let want = f.error_variance
+            + f.serial_variance * (1.0 - (-(u / f.range) * (u / f.range)).exp())
+            + f.slope_variance * u * u / 2.0;
         let got = s["variogram"]["fitted_at_bins"][j].as_f64().unwrap();
         assert!((got - want).abs() <= 1e-12 * want.abs().max(1.0));
     }
@@ -643,7 +677,23 @@ fn screening_holds_the_estimators_numbers_on_the_subsample() {
     assert!(s["grid_structures"].is_string());
     check_criteria(&sc, &res);
     let summary = r.json["summary"].as_str().unwrap();
-    assert!(summary.contains("Covariance screening:") && summary.contains("fits best"));
+    match sc.fits.iter().find(|f| !f.flagged) {
+        Some(b) => {
+            assert!(summary.contains("Covariance screening ("), "{summary}");
+            assert!(summary.contains(" as best"), "{summary}");
+            assert_eq!(
+                b.structure.contains("slope"),
+                summary.contains("slope variance")
+            );
+        }
+        None => assert!(summary.contains("no structure is suggested")),
+    }
+    // A flagged fit is marked in the table.
+    for f in sc.fits.iter().filter(|f| f.flagged) {
+        assert!(r
+            .html
+            .contains(&format!("FLAGGED: {}", f.flags.join("; ")).replace('\'', "&#39;")));
+    }
     let html_table = r.html.split("<section id=\"screening\">").nth(1).unwrap();
     assert!(html_table.contains("<th>delta AIC</th>"));
 
@@ -709,6 +759,6 @@ fn a_scheduled_grid_admits_toeplitz_and_unstructured() {
     };
     let sc = screen_structures(&p, &res, &so).unwrap();
     assert_eq!(s["screening"], v(&sc));
-    assert_eq!(sc.fits.len(), 7);
+    assert_eq!(sc.fits.len(), 9);
     check_criteria(&sc, &res);
 }

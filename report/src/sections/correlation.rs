@@ -1,17 +1,18 @@
 //! Binned residual correlation: the within-subject correlation of the main curve's residuals
 //! between the report's time bins (a heat map on the diverging ramp over [-1, 1], each cell
 //! with its subject count), and the correlation by bin lag against the mean gap, with the
-//! correlation implied by the variogram fit beside it when there is one.
+//! correlation implied by the structure the covariance screening reads as best (unflagged)
+//! beside it when there is one.
 
 use serde_json::json;
 
+use super::screening::Implied;
 use super::{figure, fmt, section, value, Context};
 use crate::chart::{line, Layer, Plot};
 use crate::heatmap::HeatMap;
 use crate::html::{paragraph, table, Section};
 use crate::palette::{self, Ramp};
 use trajweave_core::correlation::binned::{binned_correlation, BinnedCorrelation};
-use trajweave_core::correlation::variogram::fit::VariogramFit;
 
 /// Most bins for which the heat map writes the value and count in each cell (beyond this the
 /// cells are too small to read; the JSON still has every number).
@@ -26,12 +27,13 @@ pub(crate) fn empty_pairs(c: &BinnedCorrelation) -> usize {
         .count()
 }
 
-/// The section. `fit` is the variogram fit, whose implied correlation is drawn beside the lag
-/// correlation; a correlation that cannot be estimated is said in the text, not an error.
+/// The section. `implied` is the correlation implied by the screening's best unflagged
+/// structure, drawn beside the lag correlation; a correlation that cannot be estimated is said
+/// in the text, not an error.
 pub(crate) fn build(
     ctx: &Context,
     residuals: &[f64],
-    fit: Option<&VariogramFit>,
+    implied: Option<&Implied>,
     progress: &mut dyn FnMut(&str),
 ) -> Section {
     progress("binned residual correlation");
@@ -127,13 +129,8 @@ pub(crate) fn build(
         width: 1.0,
         dashed: true,
     });
-    if let Some(f) = fit {
-        let mut l = line(
-            &format!("implied by the {} variogram fit", f.model.name()),
-            &f.curve_lag,
-            &f.curve_correlation,
-            1,
-        );
+    if let Some(f) = implied {
+        let mut l = line(&f.name, &f.lag, &f.correlation, 1);
         if let Layer::Line { dashed, width, .. } = &mut l {
             *dashed = true;
             *width = 1.6;
@@ -163,11 +160,20 @@ pub(crate) fn build(
             "For each lag L (bins apart), the cells (a, a + L) that have a correlation, \
              averaged with their subject counts as weights, at the same weighted mean of the \
              gap between the bin centres.{}",
-            if fit.is_some() {
-                " Dashed: the correlation of two measurements u apart implied by the variogram \
-                 fit, (nu^2 + sigma^2 rho(u)) / (nu^2 + sigma^2 + tau^2)."
-            } else {
-                ""
+            match implied {
+                Some(f) if f.structure.contains("slope") => format!(
+                    " Dashed: the correlation of a measurement at time {} with one u later \
+                     implied by the structure the screening reads as best ({}); with a random \
+                     slope it depends on both times, not on u alone.",
+                    fmt(f.time),
+                    f.structure
+                ),
+                Some(f) => format!(
+                    " Dashed: the correlation of two measurements u apart implied by the \
+                     structure the screening reads as best ({}).",
+                    f.structure
+                ),
+                None => String::new(),
             }
         ),
     ));

@@ -7,7 +7,8 @@ use serde_json::json;
 use super::{fmt, section, value, Context};
 use crate::html::{paragraph, table, Section};
 use trajweave_core::correlation::screen::{
-    screen_structures, ScreenOptions, Screening, Structure, MAX_BINS,
+    implied_correlation, screen_structures, ScreenOptions, Screening, Structure, StructureFit,
+    MAX_BINS,
 };
 use trajweave_core::data::grid::TimeGrid;
 use trajweave_core::data::panel::{Missing, Panel, SubjectIds};
@@ -25,6 +26,10 @@ pub(crate) fn words(name: &str) -> String {
         "exponential" => "exponential serial".into(),
         "gaussian" => "gaussian serial".into(),
         "intercept_exponential_error" => "random intercept + exponential serial + error".into(),
+        "intercept_slope_error" => "random intercept and slope + error".into(),
+        "intercept_slope_exponential_error" => {
+            "random intercept and slope + exponential serial + error".into()
+        }
         "toeplitz" => "toeplitz (banded by bin lag)".into(),
         "unstructured" => "unstructured (by bin)".into(),
         other => other.replace('_', " "),
@@ -99,33 +104,105 @@ pub(crate) fn grid_refusal(panel: &Panel, grid: &TimeGrid) -> Option<String> {
     }
 }
 
-/// The one-line reading of a ranking: the best structure, the next, and exchangeable when it
-/// is neither.
+/// The one-line reading of a ranking: the best structure (by AIC) that carries no flag, what
+/// was ranked above it and flagged, the next unflagged one, and exchangeable when it is neither.
+/// `None` when every fit is flagged.
 pub(crate) fn reading(s: &Screening) -> Option<String> {
-    let best = s.fits.first()?;
-    let mut parts = vec![format!(
-        "{} fits best (smallest AIC)",
-        words(&best.structure)
-    )];
-    if let Some(next) = s.fits.get(1) {
+    let pos = s.fits.iter().position(|f| !f.flagged);
+    let mut parts = Vec::new();
+    let above: Vec<String> = s.fits[..pos.unwrap_or(s.fits.len())]
+        .iter()
+        .map(|f| format!("{} ({})", words(&f.structure), f.flags.join("; ")))
+        .collect();
+    let best = pos.map(|k| &s.fits[k]);
+    if let Some(b) = best {
+        parts.push(format!(
+            "{} fits best among the fits without flags (smallest AIC)",
+            words(&b.structure)
+        ));
+    }
+    if !above.is_empty() {
+        parts.push(format!(
+            "{} ranked {} by AIC but {} flagged, so {} not read as a finding",
+            above.join(", "),
+            if best.is_some() { "higher" } else { "first" },
+            if above.len() == 1 { "is" } else { "are" },
+            if above.len() == 1 {
+                "it is"
+            } else {
+                "they are"
+            },
+        ));
+    }
+    let b = best?;
+    if let Some(next) = s.fits.iter().skip(pos? + 1).find(|f| !f.flagged) {
         parts.push(format!(
             "the next, {}, is {} AIC units worse",
             words(&next.structure),
-            fmt(next.delta_aic)
+            fmt(next.delta_aic - b.delta_aic)
         ));
     }
     if let Some(e) = s
         .fits
         .iter()
-        .skip(2)
-        .find(|f| f.structure == Structure::Exchangeable.name())
+        .find(|f| f.structure == Structure::Exchangeable.name() && f.structure != b.structure)
     {
         parts.push(format!(
             "an exchangeable structure is {} AIC units worse",
-            fmt(e.delta_aic)
+            fmt(e.delta_aic - b.delta_aic)
         ));
     }
     Some(parts.join("; "))
+}
+
+/// The correlation implied by a fitted structure between a measurement at `time` and one
+/// `lag` later, for the correlation-by-lag figure.
+pub(crate) struct Implied {
+    /// Legend text.
+    pub name: String,
+    /// The structure's name.
+    pub structure: String,
+    /// The first time of each pair.
+    pub time: f64,
+    pub lag: Vec<f64>,
+    pub correlation: Vec<f64>,
+}
+
+/// The line implied by the best unflagged structure, at the median observation time (the
+/// random-slope structures depend on both times; the others on the lag only), for lags from 0
+/// to the last observation time; `None` without an unflagged fit.
+pub(crate) fn implied_line(ctx: &Context, s: &Screening) -> Option<Implied> {
+    let f = best_unflagged(s)?;
+    let structure = Structure::parse(&f.structure).ok()?;
+    let mut t = ctx.panel.time().to_vec();
+    t.sort_by(f64::total_cmp);
+    let median = trajweave_core::numeric::quantile::quantile_sorted(&t, 0.5);
+    let last = *t.last()?;
+    let span = (last - median).max(0.0);
+    let lag: Vec<f64> = (0..=100).map(|k| span * k as f64 / 100.0).collect();
+    let grid = structure.needs_grid().then_some(&ctx.grid);
+    let correlation = implied_correlation(structure, &f.parameters, median, &lag, grid).ok()?;
+    let slope = f.structure.contains("slope");
+    Some(Implied {
+        name: format!(
+            "implied by {}{}",
+            words(&f.structure),
+            if slope {
+                format!(", from time {}", fmt(median))
+            } else {
+                String::new()
+            }
+        ),
+        structure: f.structure.clone(),
+        time: median,
+        lag,
+        correlation,
+    })
+}
+
+/// The best fit without flags, if any.
+pub(crate) fn best_unflagged(s: &Screening) -> Option<&StructureFit> {
+    s.fits.iter().find(|f| !f.flagged)
 }
 
 /// The section and the reading (for the summary). A screening that cannot be fitted is said
@@ -134,7 +211,7 @@ pub(crate) fn build(
     ctx: &Context,
     residuals: &[f64],
     progress: &mut dyn FnMut(&str),
-) -> Result<(Section, Option<String>)> {
+) -> Result<(Section, Option<Screening>)> {
     progress("covariance screening");
     let o = ctx.options;
     let drawn = subsample(ctx.panel, residuals, o.screen_subjects, o.screen_seed)?;
@@ -208,8 +285,12 @@ pub(crate) fn build(
         }
     };
     let line = reading(&screening);
-    if let Some(l) = &line {
-        text.push_str(&paragraph(&format!("Reading: {l}.")));
+    match &line {
+        Some(l) => text.push_str(&paragraph(&format!("Reading: {l}."))),
+        None => text.push_str(&paragraph(
+            "Reading: every fit carries a flag (a parameter at a boundary or no convergence), \
+             so no structure is suggested.",
+        )),
     }
     let rows: Vec<Vec<String>> = screening
         .fits
@@ -232,6 +313,11 @@ pub(crate) fn build(
                 fmt(f.aic),
                 fmt(f.bic),
                 fmt(f.delta_aic),
+                if f.flags.is_empty() {
+                    "-".into()
+                } else {
+                    format!("FLAGGED: {}", f.flags.join("; "))
+                },
             ]
         })
         .collect();
@@ -243,6 +329,7 @@ pub(crate) fn build(
             "AIC",
             "BIC",
             "delta AIC",
+            "flags",
         ],
         &rows,
     ));
@@ -294,6 +381,6 @@ pub(crate) fn build(
             Vec::new(),
             numbers,
         ),
-        line,
+        Some(screening),
     ))
 }

@@ -9,7 +9,9 @@ use super::{figure, fmt, section, value, Context};
 use crate::chart::{line, Layer, Plot};
 use crate::html::{paragraph, table, Section};
 use crate::palette;
-use trajweave_core::correlation::variogram::fit::{fit_variogram, Estimate, VariogramFit};
+use trajweave_core::correlation::variogram::fit::{
+    compare_variogram_fits, Estimate, Preference, VariogramComparison, VariogramFit,
+};
 use trajweave_core::correlation::variogram::{variogram, Variogram};
 use trajweave_core::error::Result;
 
@@ -45,10 +47,23 @@ impl Shares {
 
 /// The fitted variogram at each bin's mean lag (NaN for an empty bin).
 pub(crate) fn fitted_at(vg: &Variogram, f: &VariogramFit) -> Vec<f64> {
-    vg.lag
-        .iter()
-        .map(|&u| f.error_variance + f.serial_variance * (1.0 - f.model.rho(u, f.range)))
-        .collect()
+    vg.lag.iter().map(|&u| f.variogram_at(u)).collect()
+}
+
+/// The two fits, the comparison's verdict and the fit it prefers (none when both are
+/// flagged).
+pub(crate) struct Outcome {
+    pub comparison: Option<VariogramComparison>,
+    pub chosen: Option<VariogramFit>,
+}
+
+/// A fit's name in words.
+pub(crate) fn fit_name(f: &VariogramFit) -> String {
+    if f.random_slope {
+        format!("{} + random slope", f.model.name())
+    } else {
+        format!("{} (stationary)", f.model.name())
+    }
 }
 
 fn percent(x: f64) -> String {
@@ -64,7 +79,7 @@ pub(crate) fn build(
     ctx: &Context,
     residuals: &[f64],
     progress: &mut dyn FnMut(&str),
-) -> Result<(Section, Option<VariogramFit>)> {
+) -> Result<(Section, Outcome)> {
     progress("variogram");
     let o = ctx.options;
     let vo = o.variogram()?;
@@ -75,9 +90,13 @@ pub(crate) fn build(
          time between them, averaged within {} {} lag bins from 0 to the maximum lag (bins \
          with fewer than {} pairs give no estimate). The process variance, the mean over \
          pairs of visits of different subjects, is the level a variogram of residuals with \
-         no between-subject variation would reach. The {} model gamma(u) = tau^2 + sigma^2 (1 - \
-         rho(u / phi)) is fitted to the {} estimates by Cressie's weighted least squares; \
-         nu^2 = process variance - tau^2 - sigma^2 is the random-intercept variance.",
+         no between-subject variation would reach. Two models with {} serial correlation are fitted to the {} estimates \
+         by Cressie's weighted least squares: the stationary gamma(u) = tau^2 + sigma^2 (1 - \
+         rho(u / phi)), and the same plus omega^2 u^2 / 2, the rise a random slope of \
+         variance omega^2 adds (whatever its covariance with the intercept); nu^2, the rest \
+         of the process variance, is the between-subject variance. A fit with a parameter at \
+         a boundary (a range at its cap, a variance at 0) or without convergence is flagged \
+         and not read.",
         o.smoother,
         o.lag_bins,
         o.lag_kind.replace('_', "-"),
@@ -100,17 +119,27 @@ pub(crate) fn build(
             });
             return Ok((
                 section("variogram", "Variogram", text, Vec::new(), numbers),
-                None,
+                Outcome {
+                    comparison: None,
+                    chosen: None,
+                },
             ));
         }
     };
-    let fit = match fit_variogram(&vg, model, estimate) {
-        Ok(f) => Some(f),
+    let comparison = match compare_variogram_fits(&vg, model, estimate) {
+        Ok(c) => Some(c),
         Err(e) => {
             skipped.push(format!("variogram fit: {e}"));
             None
         }
     };
+    let chosen = comparison.as_ref().and_then(|c| match c.preferred {
+        Preference::Stationary => Some(c.stationary.clone()),
+        Preference::RandomSlope => Some(c.random_slope.clone()),
+        Preference::Neither => None,
+    });
+    // The stationary fit stays under "fit" in the numbers; both are under "comparison".
+    let fit = comparison.as_ref().map(|c| c.stationary.clone());
 
     let mut p = Plot::new(
         &format!("Variogram of the residuals of {}", ctx.columns.response),
@@ -127,13 +156,31 @@ pub(crate) fn build(
         width: 1.4,
         dashed: true,
     });
-    if let Some(f) = &fit {
-        p = p.with(line(
-            &format!("fitted {} model", f.model.name()),
-            &f.curve_lag,
-            &f.curve_variogram,
-            1,
-        ));
+    if let Some(c) = &comparison {
+        for (k, f) in [&c.stationary, &c.random_slope].into_iter().enumerate() {
+            let read = chosen.as_ref() == Some(f);
+            let mut l = line(
+                &format!(
+                    "{} fit{}",
+                    fit_name(f),
+                    if read {
+                        " (read)"
+                    } else if f.flagged {
+                        " (flagged)"
+                    } else {
+                        " (not preferred)"
+                    }
+                ),
+                &f.curve_lag,
+                &f.curve_variogram,
+                1 + 2 * k,
+            );
+            if let Layer::Line { dashed, width, .. } = &mut l {
+                *dashed = !read;
+                *width = if read { 2.0 } else { 1.4 };
+            }
+            p = p.with(l);
+        }
     }
     // Pair counts written over the points while there is room for them.
     let labelled = vg.lag.len() <= LABELLED_BINS;
@@ -199,8 +246,9 @@ pub(crate) fn build(
                 } else {
                     ""
                 },
-                if fit.is_some() {
-                    "Solid orange: the fitted model. "
+                if comparison.is_some() {
+                    "Lines: the stationary and the random-slope model (the one read solid, \
+                     a flagged or not preferred one dashed). "
                 } else {
                     ""
                 },
@@ -219,7 +267,7 @@ pub(crate) fn build(
         ),
     ];
 
-    let fitted = fit.as_ref().map(|f| fitted_at(&vg, f));
+    let fitted = chosen.as_ref().or(fit.as_ref()).map(|f| fitted_at(&vg, f));
     let bin_rows: Vec<Vec<String>> = (0..vg.lag.len())
         .map(|j| {
             vec![
@@ -235,61 +283,15 @@ pub(crate) fn build(
             ]
         })
         .collect();
-    let shares = fit.as_ref().map(Shares::of);
-    if let (Some(f), Some(s)) = (&fit, &shares) {
-        let unit = ctx.columns.time_unit.as_deref().unwrap_or("time units");
-        text.push_str(&paragraph(&format!(
-            "Fitted ({} model, {} bins): nu^2 = {}, sigma^2 = {}, tau^2 = {}, range phi = {} {} \
-             (the serial correlation falls to 1/e = 0.37 at a lag of phi). Of their sum {} \
-             (process variance {}), {} is between subjects, {} serial and {} measurement \
-             error; two measurements of a subject close in time are expected to correlate {}, \
-             and {} at a lag of {}.",
-            f.model.name(),
-            f.bins_used,
-            fmt(f.intercept_variance),
-            fmt(f.serial_variance),
-            fmt(f.error_variance),
-            fmt(f.range),
-            unit,
-            fmt(s.total),
-            fmt(f.process_variance),
-            percent(s.intercept),
-            percent(s.serial),
-            percent(s.error),
-            fmt(f.curve_correlation.first().copied().unwrap_or(f64::NAN)),
-            fmt(f.curve_correlation.last().copied().unwrap_or(f64::NAN)),
-            fmt(vg.max_lag),
-        )));
-        let row = |name: &str, sym: &str, x: f64, share: f64| {
-            vec![name.to_string(), sym.to_string(), fmt(x), percent(share)]
-        };
-        text.push_str(&table(
-            &["component", "parameter", "variance", "share"],
-            &[
-                row(
-                    "random intercept (between subjects)",
-                    "nu^2",
-                    f.intercept_variance,
-                    s.intercept,
-                ),
-                row(
-                    &format!("serial ({}, range {})", f.model.name(), fmt(f.range)),
-                    "sigma^2",
-                    f.serial_variance,
-                    s.serial,
-                ),
-                row("measurement error", "tau^2", f.error_variance, s.error),
-                row("sum", "", s.total, 1.0),
-            ],
+    let shares = chosen.as_ref().map(Shares::of);
+    if let Some(c) = &comparison {
+        text.push_str(&fits_text(
+            ctx,
+            c,
+            chosen.as_ref(),
+            shares.as_ref(),
+            vg.max_lag,
         ));
-        if f.warnings.is_empty() {
-            text.push_str(&paragraph("The fit gave no warnings."));
-        } else {
-            text.push_str(&paragraph(&format!(
-                "Warnings of the fit: {}.",
-                f.warnings.join("; ")
-            )));
-        }
     }
     if !skipped.is_empty() {
         text.push_str(&paragraph(&format!("Not drawn: {}.", skipped.join("; "))));
@@ -311,20 +313,116 @@ pub(crate) fn build(
         "estimate": value(&estimate),
         "variogram": value(&vg),
         "fit": value(&fit),
+        "comparison": value(&comparison),
+        "chosen": value(&chosen),
         "fitted_at_bins": value(&fitted),
         "shares": value(&shares),
         "skipped": skipped,
     });
     Ok((
         section("variogram", "Variogram", text, figures, numbers),
-        fit,
+        Outcome { comparison, chosen },
     ))
+}
+
+/// The table of both fits with their flags, the verdict, and the components of the fit read.
+fn fits_text(
+    ctx: &Context,
+    c: &VariogramComparison,
+    chosen: Option<&VariogramFit>,
+    shares: Option<&Shares>,
+    max_lag: f64,
+) -> String {
+    let unit = ctx.columns.time_unit.as_deref().unwrap_or("time units");
+    let rows: Vec<Vec<String>> = [&c.stationary, &c.random_slope]
+        .into_iter()
+        .map(|f| {
+            vec![
+                fit_name(f),
+                fmt(f.error_variance),
+                fmt(f.serial_variance),
+                fmt(f.range),
+                if f.random_slope {
+                    fmt(f.slope_variance)
+                } else {
+                    "-".into()
+                },
+                fmt(f.criterion),
+                if f.flags.is_empty() {
+                    "none".into()
+                } else {
+                    f.flags.join("; ")
+                },
+            ]
+        })
+        .collect();
+    let mut text = table(
+        &[
+            "model",
+            "tau^2",
+            "sigma^2",
+            &format!("range phi ({unit})"),
+            "omega^2 (slope)",
+            "criterion",
+            "flags",
+        ],
+        &rows,
+    );
+    text.push_str(&paragraph(&format!("Which fit is read: {}.", c.reason)));
+    match (chosen, shares) {
+        (Some(f), Some(s)) => {
+            let at = if f.random_slope {
+                format!(" at the mean visit time {} {}", fmt(f.intercept_time), unit)
+            } else {
+                String::new()
+            };
+            text.push_str(&paragraph(&format!(
+                "Read fit ({}): between subjects nu^2 = {}{at}, serial sigma^2 = {} (range {} \
+                 {unit}), measurement error tau^2 = {}{}. Of their sum {} (process variance \
+                 {}), {} is between subjects, {} serial and {} measurement error{}.",
+                fit_name(f),
+                fmt(f.intercept_variance),
+                fmt(f.serial_variance),
+                fmt(f.range),
+                fmt(f.error_variance),
+                if f.random_slope {
+                    format!(
+                        ", slope variance omega^2 = {} per {unit} squared",
+                        fmt(f.slope_variance)
+                    )
+                } else {
+                    String::new()
+                },
+                fmt(s.total),
+                fmt(f.process_variance),
+                percent(s.intercept),
+                percent(s.serial),
+                percent(s.error),
+                if f.random_slope {
+                    String::new()
+                } else {
+                    format!(
+                        "; two measurements close in time are expected to correlate {}, and {} \
+                         at a lag of {}",
+                        fmt(f.curve_correlation.first().copied().unwrap_or(f64::NAN)),
+                        fmt(f.curve_correlation.last().copied().unwrap_or(f64::NAN)),
+                        fmt(max_lag)
+                    )
+                }
+            )));
+        }
+        _ => text.push_str(&paragraph(&format!(
+            "No fit is read: both carry flags, so no variance share or range is quoted. {}",
+            c.stationary.reading
+        ))),
+    }
+    text
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
-    use trajweave_core::correlation::variogram::fit::VariogramModel;
+    use trajweave_core::correlation::variogram::fit::{fit_variogram, VariogramModel};
 
     #[test]
     fn shares_and_fitted_values_by_hand() {
