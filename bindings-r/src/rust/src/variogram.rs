@@ -9,8 +9,8 @@
 
 use extendr_api::prelude::*;
 use trajweave_core::correlation::variogram::fit::{
-    compare_variogram_fits, fit_variogram_with, CorrelationCurve, Estimate, FitOptions,
-    Preference, VariogramFit, VariogramModel,
+    compare_variogram_fits, fit_variogram_with, CorrelationCurve, Estimate, FitOptions, Preference,
+    VariogramFit, VariogramModel,
 };
 use trajweave_core::correlation::variogram::{
     process_variance, variogram, PairSample, Variogram, VariogramOptions,
@@ -373,11 +373,7 @@ fn run_compare(vg: &Robj, model: &Robj, estimate: &Robj) -> Outcome {
 }
 
 fn texts(values: &[String]) -> Robj {
-    values
-        .iter()
-        .map(String::as_str)
-        .collect::<Vec<_>>()
-        .into()
+    values.iter().map(String::as_str).collect::<Vec<_>>().into()
 }
 
 /// A fit as an R list: every field of the core's result, the curves as one data.frame.
