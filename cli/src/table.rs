@@ -75,7 +75,9 @@ pub fn read_panel_from(
             })
         };
         let id = cell(subject_at);
-        subject_text.push((!id.is_empty()).then(|| id.to_string()));
+        // The missing-value markers of numbers mean a missing id too, never a subject "NA".
+        let is_missing = parse_number(id).is_some_and(f64::is_nan);
+        subject_text.push((!is_missing).then(|| id.to_string()));
         time.push(number(time_at, cols.time)?);
         response.push(number(response_at, cols.response)?);
         for (k, &at) in covariate_at.iter().enumerate() {
