@@ -122,7 +122,11 @@ fn missing_cells_in_any_column_dropped_and_counted() {
             path.display()
         )
     );
-    let o = on_file("describe", &path, &["--missing", "drop", "--covariate", "age"]);
+    let o = on_file(
+        "describe",
+        &path,
+        &["--missing", "drop", "--covariate", "age"],
+    );
     let text = String::from_utf8(o.stdout).unwrap();
     assert!(
         text.contains("missing, by column     subject 2, time 1, age 1\n"),

@@ -37,7 +37,13 @@ fn drop_counts_each_column_and_keeps_the_rest() {
         .collect();
     // By hand: subject rows 2 and 6 (blank text), time row 3, response row 1, age rows 2 and
     // 4, sex row 5; row 2 counts under both subject and age.
-    let expected = [("subject", 2), ("time", 1), ("response", 1), ("age", 2), ("sex", 1)];
+    let expected = [
+        ("subject", 2),
+        ("time", 1),
+        ("response", 1),
+        ("age", 2),
+        ("sex", 1),
+    ];
     assert_eq!(
         counts,
         expected
@@ -70,7 +76,14 @@ fn error_names_the_first_missing_cell() {
 #[test]
 fn complete_panel_reports_no_missing_columns() {
     let ids = SubjectIds::Float(vec![1.0, 1.0, 2.0]);
-    let p = Panel::new(ids, &[0.0, 1.0, 0.0], &[1.0, 2.0, 3.0], vec![], Missing::Drop).unwrap();
+    let p = Panel::new(
+        ids,
+        &[0.0, 1.0, 0.0],
+        &[1.0, 2.0, 3.0],
+        vec![],
+        Missing::Drop,
+    )
+    .unwrap();
     assert!(p.dropped_by_column().is_empty());
     // By hand: 1.0 and 1.0 are one subject.
     assert_eq!(p.n_subjects(), 2);

@@ -98,6 +98,16 @@ def test_missing_text_ids_are_never_a_subject_called_na():
     assert p.dropped_by_column == {"subject": 2}
 
 
+def test_subject_id_rule():
+    t, y = [0.0, 1.0, 0.0], [1.0, 2.0, 3.0]
+    # Reference: pandas nunique on the same column (numbers compare numerically, text exactly).
+    numeric = pd.Series([1, 1.0, 2])
+    text = pd.Series(["007", "7", "007"])
+    assert tw.Panel(numeric, t, y).n_subjects == numeric.nunique() == 2
+    assert tw.Panel(text, t, y).n_subjects == text.nunique() == 2
+    assert tw.Panel(text, t, y).subject_ids == ["007", "7"]
+
+
 def test_covariates_kept_in_sorted_order():
     df = pd.DataFrame({"id": [2, 1, 2], "t": [1.0, 0.0, 0.0], "y": [1.0, 2.0, 3.0], "dose": [5.0, 6.0, 7.0]})
     p = tw.Panel.from_frame(df, "id", "t", "y", covariates="dose")

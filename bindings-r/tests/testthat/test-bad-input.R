@@ -133,3 +133,12 @@ test_that("a panel restored from disk is refused, not dereferenced", {
     )
   )
 })
+
+test_that("subject ids: numbers compare numerically, text exactly", {
+  # Reference: base R length(unique()) on the same vectors.
+  numeric <- c(1, 1.0, 2)
+  text <- c("007", "7", "007")
+  expect_identical(length(panel_subject_ids(panel(numeric, c(0, 1, 0), c(1, 2, 3)))),
+    length(unique(numeric)))
+  expect_identical(panel_subject_ids(panel(text, c(0, 1, 0), c(1, 2, 3))), sort(unique(text)))
+})
