@@ -106,6 +106,15 @@ impl NativePanel {
     }
 
     #[getter]
+    fn dropped_by_column(&self) -> Vec<(String, usize)> {
+        self.inner
+            .dropped_by_column()
+            .iter()
+            .map(|c| (c.column.clone(), c.rows))
+            .collect()
+    }
+
+    #[getter]
     fn subject_ids<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyList>> {
         id_list(py, self.inner.ids())
     }

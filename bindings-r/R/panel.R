@@ -57,6 +57,15 @@ panel_subject_ids <- function(panel) {
   tw_value(.Call(wrap__tw_panel_info, panel[["pointer"]]))$subject_ids
 }
 
+# Rows dropped under missing = "drop" per column with a missing cell (subject, time,
+# response, then covariates; a row missing in two columns counts in both), as a named vector.
+panel_dropped_by_column <- function(panel) {
+  if (!inherits(panel, "trajweave_panel")) {
+    tw_stop_option("panel", panel, "build one with panel() or panel_from_frame()")
+  }
+  tw_value(.Call(wrap__tw_panel_info, panel[["pointer"]]))$dropped_by_column
+}
+
 # Whether the response holds exactly two distinct values (a 0/1 outcome); LOWESS then runs
 # without robustness iterations unless they are set.
 panel_is_binary <- function(panel) {
@@ -72,6 +81,10 @@ print.trajweave_panel <- function(x, ...) {
   cat("subjects      ", format(info$subjects), "\n", sep = "")
   cat("observations  ", format(info$observations), " (of ", format(info$rows_input),
       " rows; ", format(info$rows_dropped), " dropped)\n", sep = "")
+  if (length(info$dropped_by_column) > 0L) {
+    cat("missing       ", paste(names(info$dropped_by_column), info$dropped_by_column,
+      collapse = ", "), " (rows, by column)\n", sep = "")
+  }
   if (length(info$covariates) > 0L) {
     cat("covariates    ", paste(info$covariates, collapse = ", "), "\n", sep = "")
   }

@@ -16,7 +16,7 @@ use clap::{Args, Parser, Subcommand, ValueEnum};
 use trajweave_core::{describe, simulate, Missing, SimulateOptions, SimulatedPanel, TimeGrid};
 
 use error::CliError;
-use table::{read_panel, Columns};
+use table::{read_panel, Columns, ReadArgs};
 
 #[derive(Parser)]
 #[command(
@@ -63,7 +63,8 @@ enum Command {
 
 #[derive(Args)]
 pub struct PanelArgs {
-    /// CSV file with a header row.
+    /// Delimited text file with a header row (comma, semicolon, tab or pipe; gzip or plain;
+    /// `-` for standard input).
     file: PathBuf,
     /// Column holding subject ids (whole numbers or text).
     #[arg(long)]
@@ -77,9 +78,12 @@ pub struct PanelArgs {
     /// A numeric covariate column (repeat for several).
     #[arg(long = "covariate")]
     covariates: Vec<String>,
-    /// What to do with a blank, NA or infinite response: error (default) or drop.
+    /// What to do with a row holding a missing cell (a missing id, time, response or covariate,
+    /// or an infinite response): error (default) or drop.
     #[arg(long, default_value = "error")]
     missing: String,
+    #[command(flatten)]
+    read: ReadArgs,
 }
 
 impl PanelArgs {
@@ -91,7 +95,7 @@ impl PanelArgs {
             response: &self.response,
             covariates: &self.covariates,
         };
-        read_panel(&self.file, &cols, missing)
+        read_panel(&self.file, &cols, missing, &self.read.dialect()?)
     }
 }
 

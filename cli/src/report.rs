@@ -11,7 +11,7 @@ use trajweave_core::Missing;
 use trajweave_report::{build_report, ReportColumns, ReportOptions, ReportValue};
 
 use crate::error::CliError;
-use crate::table::{read_panel, read_panel_from, Columns};
+use crate::table::{read_panel, read_panel_from, Columns, Dialect, ReadArgs};
 use crate::write_out;
 
 /// The bundled demo data: the invented kidney registry (simulated; no real patient).
@@ -20,7 +20,8 @@ const DEMO_COVARIATES: [&str; 4] = ["age", "female", "diabetes", "acr"];
 
 #[derive(Args)]
 pub struct ReportArgs {
-    /// CSV file with a header row; without it, the bundled demo data.
+    /// Delimited text file with a header row (gzip or plain; `-` for standard input); without
+    /// it, the bundled demo data.
     file: Option<PathBuf>,
     /// Column holding subject ids (demo: patient).
     #[arg(long)]
@@ -34,9 +35,12 @@ pub struct ReportArgs {
     /// A numeric covariate column (repeat for several; demo: age, female, diabetes, acr).
     #[arg(long = "covariate")]
     covariates: Vec<String>,
-    /// What to do with a blank, NA or infinite response: error (default) or drop.
+    /// What to do with a row holding a missing cell (a missing id, time, response or covariate,
+    /// or an infinite response): error (default) or drop.
     #[arg(long, default_value = "error")]
     missing: String,
+    #[command(flatten)]
+    read: ReadArgs,
     /// Unit of the time column, for axis titles (demo: years).
     #[arg(long)]
     time_unit: Option<String>,
@@ -71,6 +75,7 @@ pub fn run_report(a: &ReportArgs) -> Result<(), CliError> {
         options.set(name.trim(), &value)?;
     }
     let missing: Missing = a.missing.parse()?;
+    let dialect = a.read.dialect()?;
     let (panel, columns) = match &a.file {
         None => {
             let covariates: Vec<String> = if a.covariates.is_empty() {
@@ -87,7 +92,8 @@ pub fn run_report(a: &ReportArgs) -> Result<(), CliError> {
                 response: &response,
                 covariates: &covariates,
             };
-            let panel = read_panel_from(DEMO_CSV, "demo data", &cols, missing)?;
+            let panel =
+                read_panel_from(DEMO_CSV, "demo data", &cols, missing, &Dialect::default())?;
             let columns = ReportColumns {
                 subject: subject.clone(),
                 time: time.clone(),
@@ -119,7 +125,7 @@ pub fn run_report(a: &ReportArgs) -> Result<(), CliError> {
                 response: &response,
                 covariates: &a.covariates,
             };
-            let panel = read_panel(file, &cols, missing)?;
+            let panel = read_panel(file, &cols, missing, &dialect)?;
             let columns = ReportColumns {
                 subject,
                 time,

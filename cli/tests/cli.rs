@@ -96,6 +96,45 @@ fn na_response_dropped_on_request() {
 }
 
 #[test]
+fn missing_cells_in_any_column_dropped_and_counted() {
+    // Every missing-value marker in the subject column is a missing id, never a subject "NA".
+    let path = temp_csv(
+        "na_any.csv",
+        "id,t,y,age\n1,0,1,50\nNA,1,2,50\nNaN,0,3,60\n2,,4,60\n2,1,5,NA\n3,0,6,70\n",
+    );
+    let d = describe_json(&path, &["--missing", "drop", "--covariate", "age"]);
+    // By hand: rows 2-5 go (ids NA and NaN, a blank time, an NA age); subjects 1 and 3 stay.
+    assert_eq!(d["rows_dropped"], 4);
+    assert_eq!(d["subjects"], 2);
+    assert_eq!(
+        d["dropped_by_column"],
+        serde_json::json!([
+            {"column": "subject", "rows": 2},
+            {"column": "time", "rows": 1},
+            {"column": "age", "rows": 1}
+        ])
+    );
+    let o = on_file("describe", &path, &["--covariate", "age"]);
+    assert_eq!(
+        stderr(&o),
+        format!(
+            "error [missing]: {} line 3, column `id`: `subject` is missing at row 2: pass missing = \"drop\" to drop such rows, or fill them in",
+            path.display()
+        )
+    );
+    let o = on_file(
+        "describe",
+        &path,
+        &["--missing", "drop", "--covariate", "age"],
+    );
+    let text = String::from_utf8(o.stdout).unwrap();
+    assert!(
+        text.contains("missing, by column     subject 2, time 1, age 1\n"),
+        "{text}"
+    );
+}
+
+#[test]
 fn simulate_is_seeded_and_exact() {
     let a = trajweave(&["simulate", "--subjects", "20", "--seed", "5"]);
     let b = trajweave(&["simulate", "--subjects", "20", "--seed", "5"]);

@@ -28,8 +28,9 @@ pub mod numeric;
 pub mod trend;
 
 pub use data::{
-    describe, simulate, Covariate, Description, Missing, Panel, Pattern, SimulateOptions,
-    SimulatedPanel, SubjectId, SubjectIds, TimeGrid, SIMULATED_COLUMNS, SIMULATE_OPTION_NAMES,
+    describe, simulate, Covariate, Description, Missing, MissingCount, Panel, Pattern,
+    SimulateOptions, SimulatedPanel, SubjectId, SubjectIds, TimeGrid, SIMULATED_COLUMNS,
+    SIMULATE_OPTION_NAMES,
 };
 pub use error::{Error, Result};
 pub use trend::supsmu::{super_smoother, SuperSmootherOptions};

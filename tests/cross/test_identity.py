@@ -147,13 +147,13 @@ def test_same_error_everywhere(tmp_path):
     bad.write_text("id,t,y\n1,0,1\n1,,2\n")
     out = subprocess.run([CLI, "describe", str(bad), "--subject", "id", "--time", "t", "--response", "y"],
                          capture_output=True, text=True)
-    message = "`time` is not finite at row 2 (value NaN): remove the row or give a finite value"
-    assert out.stderr.strip() == f"error [non_finite]: {bad} line 3, column `t`: {message}"
-    with pytest.raises(tw.NonFiniteError) as e:
+    message = '`time` is missing at row 2: pass missing = "drop" to drop such rows, or fill them in'
+    assert out.stderr.strip() == f"error [missing]: {bad} line 3, column `t`: {message}"
+    with pytest.raises(tw.MissingValueError) as e:
         tw.Panel([1, 1], [0.0, float("nan")], [1.0, 2.0])
     assert str(e.value) == message
     code = """
-r <- tryCatch(panel(c(1L, 1L), c(0, NA), c(1, 2)), trajweave_non_finite = function(e) conditionMessage(e))
+r <- tryCatch(panel(c(1L, 1L), c(0, NA), c(1, 2)), trajweave_missing = function(e) conditionMessage(e))
 cat(r)
 """
     assert rscript(code, tmp_path) == message

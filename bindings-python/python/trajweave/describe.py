@@ -10,7 +10,7 @@ class Description(Record):
     """The description of a panel.
 
     Fields (attributes, and keys of ``to_dict()``): ``subjects``, ``observations``,
-    ``rows_input``, ``rows_dropped``, ``time_range``, ``visits_per_subject``, ``follow_up``,
+    ``rows_input``, ``rows_dropped``, ``dropped_by_column`` (``column``, ``rows``), ``time_range``, ``visits_per_subject``, ``follow_up``,
     ``gaps`` (each with ``min``, ``q1``, ``median``, ``q3``, ``max``), ``gap_count``,
     ``single_visit_subjects``, ``duplicated_rows``, ``covariates`` and, with a grid, ``grid``
     (``bins``, ``outside``, ``patterns``, ``per_subject``). ``str()`` gives the readable table

@@ -55,18 +55,22 @@ def _floats(name, values):
 class Panel:
     """Repeated measurements: one subject id, time and response per row.
 
-    Rows are validated (lengths, finite times and covariates, present subject ids, the response
-    under ``missing``), then sorted stably by (subject, time). Per-row results come back in
-    your row order.
+    Rows are validated (lengths, no infinite time or covariate, missing cells under
+    ``missing``), then sorted stably by (subject, time). Per-row results come back in your row
+    order.
 
     Parameters
     ----------
     subject : sequence of int or str
-        Subject ids; whole-number floats are accepted, ``None``/NaN are missing ids (an error).
+        Subject ids. A numeric column compares numerically (whole-number floats are accepted,
+        so ``1`` and ``1.0`` are one subject); a text column is kept exactly (``"007"`` and
+        ``"7"`` differ). ``None``/NaN/NA are missing ids, handled as ``missing`` says.
     time, response : sequence of float
     covariates : dict of name -> sequence of float, optional
     missing : {"error", "drop"}
-        What to do with a non-finite response: refuse (default) or drop the row and report it.
+        What to do with a row holding a missing cell (a missing id, a NaN time, response or
+        covariate, or an infinite response): refuse it, naming the column and row (default),
+        or drop it and count it per column (``dropped_by_column``, and in ``describe``).
 
     Examples
     --------
@@ -138,6 +142,13 @@ class Panel:
     def dropped_rows(self):
         """Input rows (counted from 0) dropped under ``missing="drop"``."""
         return self._native.dropped_rows
+
+    @property
+    def dropped_by_column(self):
+        """Rows dropped under ``missing="drop"`` per column with a missing cell, as a dict
+        (``subject``, ``time``, ``response``, then covariates; a row missing in two columns
+        counts in both)."""
+        return dict(self._native.dropped_by_column)
 
     @property
     def subject_ids(self):

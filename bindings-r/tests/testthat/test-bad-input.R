@@ -67,8 +67,8 @@ test_that("core errors pass through panel_from_frame", {
   bad$t[2] <- NA
   expect_tw_error(
     panel_from_frame(bad, "id", "t", "y"),
-    "non_finite",
-    "`time` is not finite at row 2 (value NaN): remove the row or give a finite value"
+    "missing",
+    "`time` is missing at row 2: pass missing = \"drop\" to drop such rows, or fill them in"
   )
 })
 
@@ -80,7 +80,7 @@ test_that("a factor subject works and its labels become text ids", {
   expect_tw_error(
     panel(factor(c("a", NA)), c(0, 0), c(1, 2)),
     "missing",
-    "`subject` is missing at row 2: every row needs a subject id; remove the row or fill in the id"
+    "`subject` is missing at row 2: pass missing = \"drop\" to drop such rows, or fill them in"
   )
 })
 
@@ -132,4 +132,13 @@ test_that("a panel restored from disk is refused, not dereferenced", {
       "with panel() or panel_from_frame(); panels do not survive saveRDS() or a restart"
     )
   )
+})
+
+test_that("subject ids: numbers compare numerically, text exactly", {
+  # Reference: base R length(unique()) on the same vectors.
+  numeric <- c(1, 1.0, 2)
+  text <- c("007", "7", "007")
+  expect_identical(length(panel_subject_ids(panel(numeric, c(0, 1, 0), c(1, 2, 3)))),
+    length(unique(numeric)))
+  expect_identical(panel_subject_ids(panel(text, c(0, 1, 0), c(1, 2, 3))), sort(unique(text)))
 })

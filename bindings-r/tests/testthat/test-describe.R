@@ -139,6 +139,45 @@ test_that("a panel prints its size", {
     "<trajweave panel>",
     "subjects      2",
     "observations  2 (of 3 rows; 1 dropped)",
+    "missing       response 1 (rows, by column)",
     "covariates    age"
   ))
+})
+
+test_that("missing = \"drop\" drops a missing cell in any column used and counts it", {
+  set.seed(11)
+  n <- 200
+  frame <- data.frame(
+    id = sample(1:30, n, replace = TRUE), t = runif(n, 0, 5), y = rnorm(n),
+    age = rnorm(n, 60, 5), sex = rbinom(n, 1, 0.5)
+  )
+  frame$id[sample(n, 5)] <- NA
+  frame$t[sample(n, 8)] <- NA
+  frame$y[sample(n, 12)] <- NA
+  frame$age[sample(n, 9)] <- NA
+  frame$sex[sample(n, 3)] <- NA
+  p <- panel_from_frame(frame, "id", "t", "y", c("age", "sex"), missing = "drop")
+  d <- describe(p)
+  # Reference: base R complete.cases() and colSums(is.na()).
+  expect_identical(d$observations, as.double(sum(complete.cases(frame))))
+  expect_identical(d$rows_dropped, as.double(sum(!complete.cases(frame))))
+  nas <- colSums(is.na(frame))
+  expected <- setNames(as.double(nas), c("subject", "time", "response", "age", "sex"))
+  expect_identical(d$dropped_by_column$column, names(expected))
+  expect_identical(d$dropped_by_column$rows, unname(expected))
+  expect_identical(panel_dropped_by_column(p), expected)
+  expect_output(print(p), "missing       subject 5, time 8, response 12, age 9, sex 3 (rows, by column)",
+    fixed = TRUE)
+  # Under "error", the first incomplete row (base R: which(!complete.cases())) is named.
+  first <- which(!complete.cases(frame))[[1L]]
+  column <- c("subject", "time", "response", "age", "sex")[which(is.na(frame[first, ]))[[1L]]]
+  expect_tw_error(
+    panel_from_frame(frame, "id", "t", "y", c("age", "sex")),
+    "missing",
+    sprintf("`%s` is missing at row %d: pass missing = \"drop\" to drop such rows, or fill them in",
+      column, first)
+  )
+  # A missing text id is dropped, never a subject called "NA".
+  q <- panel(c("a", NA, "b"), c(0, 0, 0), c(1, 2, 3), missing = "drop")
+  expect_identical(panel_subject_ids(q), c("a", "b"))
 })

@@ -14,7 +14,7 @@ use std::fmt::Write as _;
 use serde::Serialize;
 
 use crate::data::grid::TimeGrid;
-use crate::data::panel::{Panel, SubjectId};
+use crate::data::panel::{MissingCount, Panel, SubjectId};
 use crate::error::Result;
 use crate::numeric::quantile::FiveNumbers;
 
@@ -27,8 +27,12 @@ pub struct Description {
     pub observations: usize,
     /// Number of rows given.
     pub rows_input: usize,
-    /// Rows dropped for a non-finite response (only under `missing = "drop"`).
+    /// Rows dropped for a missing cell (only under `missing = "drop"`).
     pub rows_dropped: usize,
+    /// Of those, how many had a missing cell in each column (`subject`, `time`, `response`,
+    /// then covariates; columns with none left out; a row missing in two columns counts in
+    /// both).
+    pub dropped_by_column: Vec<MissingCount>,
     /// Earliest and latest visit time.
     pub time_range: [f64; 2],
     /// Visits per subject.
@@ -196,6 +200,7 @@ pub fn describe(panel: &Panel, grid: Option<&TimeGrid>) -> Result<Description> {
         observations: panel.n_obs(),
         rows_input: panel.n_input_rows(),
         rows_dropped: panel.dropped_rows().len(),
+        dropped_by_column: panel.dropped_by_column().to_vec(),
         time_range: [time_min, time_max],
         visits_per_subject: summary(visits),
         follow_up: summary(follow),
@@ -316,6 +321,14 @@ impl Description {
             "observations           {} (of {} rows; {} dropped)",
             self.observations, self.rows_input, self.rows_dropped
         );
+        if !self.dropped_by_column.is_empty() {
+            let by: Vec<String> = self
+                .dropped_by_column
+                .iter()
+                .map(|c| format!("{} {}", c.column, c.rows))
+                .collect();
+            let _ = writeln!(s, "missing, by column     {}", by.join(", "));
+        }
         let _ = writeln!(
             s,
             "time range             {} to {}",

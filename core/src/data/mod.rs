@@ -10,7 +10,7 @@ pub mod simulate;
 
 pub use describe::{describe, Description, Pattern};
 pub use grid::TimeGrid;
-pub use panel::{Covariate, Missing, Panel, SubjectId, SubjectIds};
+pub use panel::{Covariate, Missing, MissingCount, Panel, SubjectId, SubjectIds};
 pub use simulate::{
     simulate, SimulateOptions, SimulatedPanel, SIMULATED_COLUMNS, SIMULATE_OPTION_NAMES,
 };

@@ -1,10 +1,17 @@
 //! The validated, sorted panel every estimator reads.
 //!
-//! Rows are checked once (lengths, finite times and covariates, present subject ids, the
-//! response under the [`Missing`] policy), then stably sorted by (subject, time) so each subject
-//! is one contiguous run, addressed by offsets as in a CSR matrix. The permutation is kept:
+//! Rows are checked once (lengths, no infinite time or covariate, missing cells under the
+//! [`Missing`] policy), then stably sorted by (subject, time) so each subject is one contiguous
+//! run, addressed by offsets as in a CSR matrix. The permutation is kept:
 //! [`Panel::to_input_order`] puts any per-row result back in the caller's row order, with NaN in
 //! rows that were dropped, so nothing is silently reordered or lost.
+//!
+//! A missing cell is a missing subject id, a NaN time, response or covariate, or an infinite
+//! response (the response alone, kept from earlier releases: a response of ±inf is as unusable
+//! as a gap). Under [`Missing::Error`] the first one, in row order and within a row in the order
+//! subject, time, response, covariates, is refused with its column and row; under
+//! [`Missing::Drop`] every row holding one is dropped and counted per column
+//! ([`Panel::dropped_by_column`]; a row missing in two columns counts in both).
 
 use std::collections::HashMap;
 use std::fmt;
@@ -61,7 +68,8 @@ impl fmt::Display for SubjectId {
     }
 }
 
-/// What to do with a row whose response is not finite.
+/// What to do with a row holding a missing cell (a missing subject id, a NaN time, response or
+/// covariate, or an infinite response).
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize)]
 #[serde(rename_all = "lowercase")]
 pub enum Missing {
@@ -87,6 +95,15 @@ impl std::str::FromStr for Missing {
             )),
         }
     }
+}
+
+/// How many rows were dropped for a missing cell in one column.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize)]
+pub struct MissingCount {
+    /// The column: `subject`, `time`, `response` or a covariate's name.
+    pub column: String,
+    /// Rows with a missing cell in that column.
+    pub rows: usize,
 }
 
 /// A named numeric covariate, one value per row.
@@ -146,19 +163,34 @@ pub struct Panel {
     position: Vec<usize>,
     n_input: usize,
     dropped_rows: Vec<usize>,
+    dropped_by_column: Vec<MissingCount>,
 }
 
 impl Panel {
     /// Builds a panel from one subject id, time and response per row, plus optional numeric
     /// covariates (time-fixed or time-varying; which one is detected).
     ///
+    /// # Examples
+    /// ```
+    /// use trajweave_core::{Covariate, Missing, Panel, SubjectIds};
+    /// # fn main() -> trajweave_core::Result<()> {
+    /// let ids = SubjectIds::Int(vec![Some(1), Some(1), None, Some(2)]);
+    /// let age = Covariate::new("age", vec![50.0, f64::NAN, 60.0, 70.0]);
+    /// let p = Panel::new(ids, &[0.0, 1.0, 0.0, 0.0], &[5.0, 6.0, 7.0, 8.0], vec![age], Missing::Drop)?;
+    /// assert_eq!(p.dropped_rows(), &[1, 2]);
+    /// let counts: Vec<(&str, usize)> =
+    ///     p.dropped_by_column().iter().map(|c| (c.column.as_str(), c.rows)).collect();
+    /// assert_eq!(counts, vec![("subject", 1), ("age", 1)]);
+    /// # Ok(()) }
+    /// ```
+    ///
     /// # Errors
-    /// [`Error::LengthMismatch`] when lengths differ; [`Error::Missing`] for a missing subject
-    /// id, or a NaN response under [`Missing::Error`]; [`Error::NonFinite`] for a non-finite
-    /// time or covariate, or an infinite response under [`Missing::Error`];
-    /// [`Error::InvalidValue`] for a fractional numeric subject id; [`Error::InvalidOption`] for
-    /// a blank or repeated covariate name; [`Error::Empty`] when no rows are given or none are
-    /// left after dropping.
+    /// [`Error::LengthMismatch`] when lengths differ; under [`Missing::Error`],
+    /// [`Error::Missing`] for the first missing cell (its column and row) and
+    /// [`Error::NonFinite`] for an infinite response; in both policies [`Error::NonFinite`] for
+    /// an infinite time or covariate; [`Error::InvalidValue`] for a fractional numeric subject
+    /// id; [`Error::InvalidOption`] for a blank or repeated covariate name; [`Error::Empty`]
+    /// when no rows are given or none are left after dropping.
     pub fn new(
         subjects: SubjectIds,
         time: &[f64],
@@ -181,48 +213,77 @@ impl Panel {
         }
         let (keys, ids) = subject_keys(&subjects)?;
 
+        // Missing cells per column, in the order subject, time, response, covariates.
+        let mut counts = vec![0usize; 3 + covariates.len()];
         let mut kept = Vec::with_capacity(n);
         let mut dropped_rows = Vec::new();
         for row in 0..n {
+            let mut row_missing = false;
+            let mut mark = |col: usize, argument: &str| -> Result<()> {
+                if missing == Missing::Error {
+                    return Err(missing_cell(argument, row));
+                }
+                counts[col] += 1;
+                row_missing = true;
+                Ok(())
+            };
+            if keys[row].is_none() {
+                mark(0, "subject")?;
+            }
             let t = time[row];
-            if !t.is_finite() {
+            if t.is_nan() {
+                mark(1, "time")?;
+            } else if !t.is_finite() {
                 return Err(non_finite("time", row, t));
             }
-            for c in &covariates {
+            let y = response[row];
+            if y.is_nan() {
+                mark(2, "response")?;
+            } else if !y.is_finite() {
+                if missing == Missing::Error {
+                    return Err(non_finite("response", row, y));
+                }
+                mark(2, "response")?;
+            }
+            for (k, c) in covariates.iter().enumerate() {
                 let v = c.values[row];
-                if !v.is_finite() {
+                if v.is_nan() {
+                    mark(3 + k, &c.name)?;
+                } else if !v.is_finite() {
                     return Err(non_finite(&c.name, row, v));
                 }
             }
-            let y = response[row];
-            if !y.is_finite() {
-                match missing {
-                    Missing::Drop => {
-                        dropped_rows.push(row);
-                        continue;
-                    }
-                    Missing::Error if y.is_nan() => {
-                        return Err(Error::Missing {
-                            argument: "response".into(),
-                            row: row + 1,
-                            fix: "pass missing = \"drop\" to drop such rows, or fill them in"
-                                .into(),
-                        })
-                    }
-                    Missing::Error => return Err(non_finite("response", row, y)),
-                }
+            if row_missing {
+                dropped_rows.push(row);
+            } else {
+                kept.push(row);
             }
-            kept.push(row);
         }
+        let dropped_by_column: Vec<MissingCount> = ["subject", "time", "response"]
+            .into_iter()
+            .chain(covariates.iter().map(|c| c.name.as_str()))
+            .zip(&counts)
+            .filter(|(_, &rows)| rows > 0)
+            .map(|(column, &rows)| MissingCount {
+                column: column.to_string(),
+                rows,
+            })
+            .collect();
         if kept.is_empty() {
+            let by_column: Vec<String> = dropped_by_column
+                .iter()
+                .map(|c| format!("`{}` {}", c.column, c.rows))
+                .collect();
             return Err(Error::Empty {
                 stage: format!(
-                    "after dropping {} rows with a non-finite `response`",
-                    dropped_rows.len()
+                    "after dropping {} rows with a missing value (by column: {})",
+                    dropped_rows.len(),
+                    by_column.join(", ")
                 ),
-                fix: "check the response column; every value is missing or infinite".into(),
+                fix: "every row has a missing value in a column used; check those columns".into(),
             });
         }
+        let keys: Vec<u64> = keys.into_iter().map(|k| k.unwrap_or(0)).collect();
 
         // `+ 0.0` turns -0.0 into 0.0 so the two count as the same visit time.
         let t_of = |row: usize| time[row] + 0.0;
@@ -274,6 +335,7 @@ impl Panel {
             order: kept,
             n_input: n,
             dropped_rows,
+            dropped_by_column,
         })
     }
 
@@ -295,6 +357,14 @@ impl Panel {
     /// Input rows (counted from 0) dropped under [`Missing::Drop`], in input order.
     pub fn dropped_rows(&self) -> &[usize] {
         &self.dropped_rows
+    }
+
+    /// Rows dropped under [`Missing::Drop`] for a missing cell, per column (`subject`, `time`,
+    /// `response`, then covariates in the order given; columns with none left out). A row
+    /// missing in two columns counts in both, so the counts can add up to more than
+    /// [`Panel::dropped_rows`].
+    pub fn dropped_by_column(&self) -> &[MissingCount] {
+        &self.dropped_by_column
     }
 
     /// Subject ids in panel order (sorted).
@@ -451,11 +521,12 @@ fn non_finite(argument: &str, row: usize, value: f64) -> Error {
     }
 }
 
-fn missing_subject(row: usize) -> Error {
+/// A missing cell under [`Missing::Error`]: the column, the row and both ways out.
+fn missing_cell(argument: &str, row: usize) -> Error {
     Error::Missing {
-        argument: "subject".into(),
+        argument: argument.to_string(),
         row: row + 1,
-        fix: "every row needs a subject id; remove the row or fill in the id".into(),
+        fix: "pass missing = \"drop\" to drop such rows, or fill them in".into(),
     }
 }
 
@@ -489,36 +560,29 @@ fn time_key(t: f64) -> u64 {
 }
 
 /// Per row, an integer whose order is that of its subject id (integer ids directly, text ids
-/// by their rank among the distinct texts), and how to turn it back into the id.
-fn subject_keys(subjects: &SubjectIds) -> Result<(Vec<u64>, Ids)> {
+/// by their rank among the distinct texts), `None` for a missing id, and how to turn a key back
+/// into the id.
+fn subject_keys(subjects: &SubjectIds) -> Result<(Vec<Option<u64>>, Ids)> {
     let int_key = |i: i64| (i as u64) ^ SIGN;
     match subjects {
-        SubjectIds::Int(v) => {
-            let keys = v
-                .iter()
-                .enumerate()
-                .map(|(row, id)| id.map(int_key).ok_or_else(|| missing_subject(row)))
-                .collect::<Result<Vec<u64>>>()?;
-            Ok((keys, Ids::Int))
-        }
+        SubjectIds::Int(v) => Ok((v.iter().map(|id| id.map(int_key)).collect(), Ids::Int)),
         SubjectIds::Float(v) => {
             let keys = v
                 .iter()
                 .enumerate()
-                .map(|(row, &x)| float_id(row, x).map(int_key))
-                .collect::<Result<Vec<u64>>>()?;
+                .map(|(row, &x)| float_id(row, x).map(|id| id.map(int_key)))
+                .collect::<Result<Vec<Option<u64>>>>()?;
             Ok((keys, Ids::Int))
         }
         SubjectIds::Text(v) => {
-            let texts = v
+            let texts: Vec<Option<&str>> = v
                 .iter()
-                .enumerate()
-                .map(|(row, id)| match id {
-                    Some(s) if !s.trim().is_empty() => Ok(s.as_str()),
-                    _ => Err(missing_subject(row)),
+                .map(|id| match id {
+                    Some(s) if !s.trim().is_empty() => Some(s.as_str()),
+                    _ => None,
                 })
-                .collect::<Result<Vec<&str>>>()?;
-            let mut distinct: Vec<&str> = texts.clone();
+                .collect();
+            let mut distinct: Vec<&str> = texts.iter().flatten().copied().collect();
             distinct.sort_unstable();
             distinct.dedup();
             let rank: HashMap<&str, u64> = distinct
@@ -526,7 +590,7 @@ fn subject_keys(subjects: &SubjectIds) -> Result<(Vec<u64>, Ids)> {
                 .enumerate()
                 .map(|(i, &k)| (k, i as u64))
                 .collect();
-            let keys = texts.iter().map(|k| rank[k]).collect();
+            let keys = texts.iter().map(|k| k.map(|k| rank[k])).collect();
             Ok((
                 keys,
                 Ids::Text(distinct.into_iter().map(String::from).collect()),
@@ -535,9 +599,10 @@ fn subject_keys(subjects: &SubjectIds) -> Result<(Vec<u64>, Ids)> {
     }
 }
 
-fn float_id(row: usize, x: f64) -> Result<i64> {
+/// A numeric id as an integer; NaN is a missing id (`None`).
+fn float_id(row: usize, x: f64) -> Result<Option<i64>> {
     if x.is_nan() {
-        return Err(missing_subject(row));
+        return Ok(None);
     }
     // 2^53: beyond it not every integer is representable, so ids could merge.
     if !x.is_finite() || x.fract() != 0.0 || x.abs() > 9_007_199_254_740_992.0 {
@@ -548,7 +613,7 @@ fn float_id(row: usize, x: f64) -> Result<i64> {
             expected: "numeric subject ids must be whole numbers; use integers or text".into(),
         });
     }
-    Ok(x as i64)
+    Ok(Some(x as i64))
 }
 
 #[cfg(test)]

@@ -86,17 +86,39 @@ pub(crate) fn build(ctx: &Context) -> Result<(Section, Description)> {
     if let Some(g) = &d.gaps {
         rows.push(row(&format!("gap between visits, {time_t}"), g));
     }
+    // Rows dropped per column, under the data's own column names.
+    let by_column: Vec<String> = d
+        .dropped_by_column
+        .iter()
+        .map(|c| {
+            let name = match c.column.as_str() {
+                "subject" => ctx.columns.subject.as_str(),
+                "time" => ctx.columns.time.as_str(),
+                "response" => ctx.columns.response.as_str(),
+                other => other,
+            };
+            format!("{name} {}", c.rows)
+        })
+        .collect();
+    let dropped = if by_column.is_empty() {
+        format!("{} dropped for a missing value", d.rows_dropped)
+    } else {
+        format!(
+            "{} dropped for a missing value; missing by column: {}",
+            d.rows_dropped,
+            by_column.join(", ")
+        )
+    };
     let text = format!(
         "{}{}",
         paragraph(&format!(
-            "{} subjects, {} observations of {} ({} rows given, {} dropped for a missing \
-             response); {} from {} to {}. {} subjects have a single visit; {} rows repeat a \
-             subject's visit time.",
+            "{} subjects, {} observations of {} ({} rows given, {}); {} from {} to {}. {} \
+             subjects have a single visit; {} rows repeat a subject's visit time.",
             d.subjects,
             d.observations,
             ctx.columns.response,
             d.rows_input,
-            d.rows_dropped,
+            dropped,
             ctx.columns.time,
             fmt(d.time_range[0]),
             fmt(d.time_range[1]),
@@ -110,6 +132,7 @@ pub(crate) fn build(ctx: &Context) -> Result<(Section, Description)> {
         "observations": d.observations,
         "rows_input": d.rows_input,
         "rows_dropped": d.rows_dropped,
+        "dropped_by_column": value(&d.dropped_by_column),
         "time_range": d.time_range,
         "visits_per_subject": value(&d.visits_per_subject),
         "follow_up": value(&d.follow_up),

@@ -131,6 +131,7 @@ fn info(x: &Robj) -> Outcome {
             "covariates",
             "subject_ids",
             "binary",
+            "dropped_by_column",
         ]
         .into_iter(),
         vec![
@@ -141,8 +142,25 @@ fn info(x: &Robj) -> Outcome {
             Strings::from_values(covariates).into(),
             crate::convert::ids_robj(p.ids(), crate::convert::text_ids(p)),
             p.is_binary().into(),
+            dropped_by_column(p),
         ],
     )
+}
+
+/// Rows dropped per column with a missing cell, as a named double vector.
+fn dropped_by_column(p: &Panel) -> Robj {
+    let counts = p.dropped_by_column();
+    let mut values: Robj = counts
+        .iter()
+        .map(|c| c.rows as f64)
+        .collect::<Vec<f64>>()
+        .into();
+    let names: Vec<&str> = counts.iter().map(|c| c.column.as_str()).collect();
+    // Setting names on a fresh vector cannot fail; an empty vector keeps none.
+    if !names.is_empty() {
+        let _ = values.set_names(names);
+    }
+    values
 }
 
 extendr_module! {
