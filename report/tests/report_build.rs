@@ -488,6 +488,13 @@ fn correlation_sections_hold_the_estimators_numbers() {
                 .sum();
             assert!((share_sum - 1.0).abs() < 1e-12);
             assert!(!f.flagged);
+            // The fit read is the one drawn solid and marked so in the legend.
+            let name = if f.random_slope {
+                "exponential + random slope fit (read)"
+            } else {
+                "exponential (stationary) fit (read)"
+            };
+            assert!(figure_of(&r.html, "fig-variogram").contains(name));
             if f.random_slope {
                 assert!(
                     summary.contains("the fit with a random slope is read"),

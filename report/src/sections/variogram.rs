@@ -158,7 +158,9 @@ pub(crate) fn build(
     });
     if let Some(c) = &comparison {
         for (k, f) in [&c.stationary, &c.random_slope].into_iter().enumerate() {
-            let read = chosen.as_ref() == Some(f);
+            // By kind, not by value: a random-slope fit holds NaN curves, never equal to
+            // themselves.
+            let read = chosen.as_ref().is_some_and(|c| c.random_slope == f.random_slope);
             let mut l = line(
                 &format!(
                     "{} fit{}",
