@@ -670,6 +670,6 @@ fn a_scheduled_grid_admits_toeplitz_and_unstructured() {
     };
     let sc = screen_structures(&p, &res, &so).unwrap();
     assert_eq!(s["screening"], v(&sc));
-    assert_eq!(sc.fits.len(), 7);
+    assert_eq!(sc.fits.len(), 9);
     check_criteria(&sc, &res);
 }

@@ -133,3 +133,18 @@ def test_implied_correlation_bad_input():
         tw.implied_correlation("toeplitz", [2.0, 1.0], 0.0, [1.0])
     got = tw.implied_correlation("toeplitz", [2.0, 1.0], 0.0, [1.0, 5.0], schedule=[0, 1], tolerance=0.2)
     assert got[0] == 0.5 and np.isnan(got[1])  # c_1 / c_0; t + 5 in no bin
+
+
+def test_random_slope_parameter_errors_word_for_word():
+    ids, t, r = slope_panel(subjects=10)
+    p = tw.Panel(ids, t, r)
+    with pytest.raises(tw.InvalidOptionError) as e:
+        tw.structure_loglik(p, r, "intercept_slope_error", [1.0, 0.5, 1.5, 1.0])
+    assert str(e.value) == ("`parameters` = intercept_slope_correlation = 1.5 is not allowed: "
+                            "intercept_slope_correlation must be in [-1, 1]")
+    with pytest.raises(tw.InvalidOptionError) as e:
+        tw.implied_correlation("intercept_slope_exponential_error", [1.0] * 5, 0.0, [1.0])
+    assert str(e.value) == (
+        "`parameters` = 5 value(s) is not allowed: intercept_slope_exponential_error takes 6 "
+        "parameters: intercept_variance, slope_variance, intercept_slope_correlation, "
+        "serial_variance, range, error_variance")

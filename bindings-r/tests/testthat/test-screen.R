@@ -364,4 +364,22 @@ test_that("screening refuses bad input with classed conditions naming the argume
   expect_error(screen_structures(p, "a"),
     class = "trajweave_invalid_option", regexp = "`residuals`"
   )
+  expect_tw_error(
+    structure_loglik(p, d$r, "intercept_slope_error", c(1, 0.5, 1.5, 1)), "invalid_option",
+    paste(
+      "`parameters` = intercept_slope_correlation = 1.5 is not allowed:",
+      "intercept_slope_correlation must be in [-1, 1]"
+    )
+  )
+  expect_tw_error(
+    implied_correlation("intercept_slope_exponential_error", rep(1, 5), 0, 1), "invalid_option",
+    paste(
+      "`parameters` = 5 value(s) is not allowed: intercept_slope_exponential_error takes 6",
+      "parameters: intercept_variance, slope_variance, intercept_slope_correlation,",
+      "serial_variance, range, error_variance"
+    )
+  )
+  expect_error(implied_correlation("ar1", 1, 0, 1),
+    class = "trajweave_invalid_option", regexp = "`structure`"
+  )
 })
