@@ -1,6 +1,6 @@
 """Times the variogram, the process variance and the binned correlation through the Python
 and R bindings, beside hand-written versions with numpy, pandas and base R on the same data,
-and prints the ratio ours / theirs; and the screening of all seven covariance candidates
+and prints the ratio ours / theirs; and the screening of all nine covariance candidates
 (toeplitz and unstructured on the yearly schedule), which has no hand-written rival.
 
 Data: `subjects` subjects x 10 visits (default 1e5), visit k at k + U(-0.15, 0.15) years,
@@ -184,12 +184,12 @@ def main():
         row(f"binned correlation ({label})", s, ours, "pandas pivot + corr", theirs)
         if not unequal:
             _, ours = best(lambda: tw.screen_structures(p, r, schedule=range(10), tolerance=0.5), 1)
-            row("screening, 7 candidates (equal)", s, ours, "-", None)
+            row("screening, 9 candidates (equal)", s, ours, "-", None)
         if not a.no_r:
             out = r_rows(ids, t, r, a.repeat, screen=not unequal)
             row(f"variogram ({label}), R", s, out["ours"], "R outer() per subject", out["hand"])
             if "screen" in out:
-                row("screening, 7 candidates (equal), R", s, out["screen"], "-", None)
+                row("screening, 9 candidates (equal), R", s, out["screen"], "-", None)
     big = int(a.big)
     ids, t, r = data(big, True)
     p = tw.Panel(ids, t, r)

@@ -6,7 +6,7 @@
 use pyo3::prelude::*;
 use trajweave_core::correlation::binned::{binned_correlation, CorrelationOptions};
 use trajweave_core::correlation::screen::{
-    screen_structures, structure_loglik, ScreenOptions, Structure,
+    implied_correlation, screen_structures, structure_loglik, ScreenOptions, Structure,
 };
 use trajweave_core::correlation::variogram::fit::{
     compare_variogram_fits, fit_variogram_with, Estimate, FitOptions, VariogramModel,
@@ -225,7 +225,26 @@ pub fn panel_structure_loglik(
 ) -> PyResult<f64> {
     let r = residuals.panel_order(panel, "residuals")?;
     let grid = screen_grid(edges, schedule, tolerance)?;
-    let s = Structure::parse(structure).py_err()?;
+    let s = Structure::parse_argument(structure, "structure").py_err()?;
     py.detach(|| structure_loglik(&panel.inner, &r, s, &parameters, grid.as_ref()))
         .py_err()
+}
+
+/// The correlation `structure` at `parameters` implies between measurements at `time` and
+/// `time + lags`.
+#[allow(clippy::too_many_arguments)] // mirrors the front's keyword arguments
+#[pyfunction]
+#[pyo3(signature = (structure, parameters, time, lags, edges=None, schedule=None, tolerance=None))]
+pub fn structure_implied_correlation(
+    structure: &str,
+    parameters: Vec<f64>,
+    time: f64,
+    lags: Vec<f64>,
+    edges: Option<Vec<f64>>,
+    schedule: Option<Vec<f64>>,
+    tolerance: Option<f64>,
+) -> PyResult<Vec<f64>> {
+    let grid = screen_grid(edges, schedule, tolerance)?;
+    let s = Structure::parse_argument(structure, "structure").py_err()?;
+    implied_correlation(s, &parameters, time, &lags, grid.as_ref()).py_err()
 }

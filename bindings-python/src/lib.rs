@@ -41,6 +41,10 @@ fn _trajweave(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_function(wrap_pyfunction!(correlation::panel_process_variance, m)?)?;
     m.add_function(wrap_pyfunction!(correlation::panel_screen_structures, m)?)?;
     m.add_function(wrap_pyfunction!(correlation::panel_structure_loglik, m)?)?;
+    m.add_function(wrap_pyfunction!(
+        correlation::structure_implied_correlation,
+        m
+    )?)?;
     m.add_function(wrap_pyfunction!(report::panel_report, m)?)?;
     m.add_class::<individuals::NativeRanking>()?;
     m.add_class::<individuals::NativeValues>()?;

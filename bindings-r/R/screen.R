@@ -30,11 +30,14 @@ print.trajweave_screening <- function(x, ...) {
     " subjects, best by AIC first>\n",
     sep = ""
   )
-  print(x$fits[, c("structure", "n_parameters", "loglik", "aic", "delta_aic", "converged")],
-    row.names = FALSE, digits = 6
-  )
+  print(x$fits[, c(
+    "structure", "n_parameters", "loglik", "aic", "delta_aic", "converged", "flagged"
+  )], row.names = FALSE, digits = 6)
   for (i in which(!is.na(x$fits$note))) {
     cat("note on ", x$fits$structure[i], ": ", x$fits$note[i], "\n", sep = "")
+  }
+  for (name in names(x$flags)) {
+    for (f in x$flags[[name]]) cat("flag on ", name, ": ", f, "\n", sep = "")
   }
   for (i in seq_len(nrow(x$skipped))) {
     cat("skipped ", x$skipped$structure[i], ": ", x$skipped$reason[i], "\n", sep = "")
@@ -48,6 +51,16 @@ structure_loglik <- function(panel, residuals, structure, parameters, edges = NU
   tw_value(.Call(
     wrap__tw_structure_loglik, panel[["pointer"]], tw_residual_values(residuals),
     tw_structure_names(structure), tw_numbers(parameters, "parameters"),
+    tw_grid_numbers(edges, "edges"), tw_grid_numbers(schedule, "schedule"),
+    tw_grid_numbers(tolerance, "tolerance")
+  ))
+}
+
+implied_correlation <- function(structure, parameters, time, lags, edges = NULL,
+                                schedule = NULL, tolerance = NULL) {
+  tw_value(.Call(
+    wrap__tw_implied_correlation, tw_structure_names(structure),
+    tw_numbers(parameters, "parameters"), time, tw_numbers(lags, "lags"),
     tw_grid_numbers(edges, "edges"), tw_grid_numbers(schedule, "schedule"),
     tw_grid_numbers(tolerance, "tolerance")
   ))

@@ -3,7 +3,9 @@
 
 use clap::Args;
 use trajweave_core::correlation::binned::{binned_correlation, CorrelationOptions};
-use trajweave_core::correlation::screen::{screen_structures, ScreenOptions};
+use trajweave_core::correlation::screen::{
+    implied_correlation, screen_structures, ScreenOptions, Screening, Structure,
+};
 use trajweave_core::correlation::variogram::fit::{
     compare_variogram_fits, fit_variogram_with, Estimate, FitOptions, VariogramModel,
 };
@@ -13,7 +15,7 @@ use trajweave_core::TimeGrid;
 
 use crate::error::CliError;
 use crate::individuals::{option, MeanArgs};
-use crate::{json, write_out, PanelArgs};
+use crate::{json, write_out, Format, PanelArgs};
 
 #[derive(Args)]
 pub struct CorrelationArgs {
@@ -166,7 +168,8 @@ pub struct ScreenArgs {
     #[command(flatten)]
     mean: MeanArgs,
     /// Structures to fit, comma-separated (default all): independence, exchangeable,
-    /// exponential, gaussian, intercept_exponential_error, toeplitz, unstructured.
+    /// exponential, gaussian, intercept_exponential_error, intercept_slope_error,
+    /// intercept_slope_exponential_error, toeplitz, unstructured.
     #[arg(long, value_delimiter = ',')]
     candidates: Option<Vec<String>>,
     /// Time-bin edges for toeplitz and unstructured, comma-separated.
@@ -184,6 +187,24 @@ pub struct ScreenArgs {
     /// Relative convergence tolerance of the optimisers.
     #[arg(long, allow_hyphen_values = true)]
     convergence: Option<f64>,
+    /// Lags at which to give each fit's implied correlation, comma-separated.
+    #[arg(long, value_delimiter = ',', allow_hyphen_values = true)]
+    correlation_lags: Option<Vec<f64>>,
+    /// The time t of the first measurement for those correlations (between t and t + lag).
+    #[arg(long, allow_hyphen_values = true, default_value_t = 0.0)]
+    correlation_time: f64,
+    /// Output: JSON with every number, or a readable table.
+    #[arg(long, value_enum, default_value = "json")]
+    format: Format,
+}
+
+/// One fit's implied correlation by lag.
+#[derive(serde::Serialize)]
+struct Implied {
+    structure: String,
+    time: f64,
+    lags: Vec<f64>,
+    correlation: Vec<f64>,
 }
 
 pub fn run_screen(a: &ScreenArgs) -> Result<(), CliError> {
@@ -197,6 +218,117 @@ pub fn run_screen(a: &ScreenArgs) -> Result<(), CliError> {
     let panel = a.panel.read()?;
     let r = a.mean.residuals(&panel)?;
     let s = screen_structures(&panel, &r.residuals, &options)?;
-    let out = serde_json::json!({ "model": r.model, "screening": s });
-    write_out(std::path::Path::new("-"), json(&out)?.as_bytes())
+    let implied = match &a.correlation_lags {
+        Some(lags) => Some(implied_by_fit(
+            &s,
+            options.grid.as_ref(),
+            a.correlation_time,
+            lags,
+        )?),
+        None => None,
+    };
+    let text = match a.format {
+        Format::Json => {
+            let mut out = serde_json::json!({ "model": r.model, "screening": s });
+            if let Some(i) = &implied {
+                out["implied_correlation"] =
+                    serde_json::to_value(i).map_err(|e| CliError::io("json", e.to_string()))?;
+            }
+            json(&out)?
+        }
+        Format::Table => screening_table(&s, implied.as_deref()),
+    };
+    write_out(std::path::Path::new("-"), text.as_bytes())
+}
+
+/// The implied correlation of every fit with a finite log-likelihood, best first.
+fn implied_by_fit(
+    s: &Screening,
+    grid: Option<&TimeGrid>,
+    time: f64,
+    lags: &[f64],
+) -> Result<Vec<Implied>, CliError> {
+    let mut out = Vec::new();
+    for f in s.fits.iter().filter(|f| f.loglik.is_finite()) {
+        let structure = Structure::parse(&f.structure)?;
+        out.push(Implied {
+            structure: f.structure.clone(),
+            time,
+            lags: lags.to_vec(),
+            correlation: implied_correlation(structure, &f.parameters, time, lags, grid)?,
+        });
+    }
+    Ok(out)
+}
+
+/// The ranking as a table with a flag column, then the flags, notes and skipped candidates in
+/// words, and the implied correlations when asked for.
+fn screening_table(s: &Screening, implied: Option<&[Implied]>) -> String {
+    use std::fmt::Write;
+    let mut t = format!(
+        "{} subjects, {} observations; best by AIC first (intercept variances of the \
+         random-slope structures at time {})\n",
+        s.subjects, s.observations, s.time_origin
+    );
+    let _ = writeln!(
+        t,
+        "{:<34} {:>3} {:>16} {:>16} {:>12} {:>9} {:>7}",
+        "structure", "p", "loglik", "aic", "delta_aic", "converged", "flagged"
+    );
+    for f in &s.fits {
+        let _ = writeln!(
+            t,
+            "{:<34} {:>3} {:>16.4} {:>16.4} {:>12.4} {:>9} {:>7}",
+            f.structure,
+            f.n_parameters,
+            f.loglik,
+            f.aic,
+            f.delta_aic,
+            if f.converged { "yes" } else { "no" },
+            if f.flagged { "FLAG" } else { "" }
+        );
+    }
+    for f in &s.fits {
+        let shown: Vec<String> = f
+            .parameter_names
+            .iter()
+            .zip(&f.parameters)
+            .map(|(n, v)| {
+                // Six significant digits, in exponent form below 1e-3 (a variance at 0 shows).
+                if *v != 0.0 && v.abs() < 1e-3 {
+                    format!("{n} = {v:.5e}")
+                } else {
+                    format!("{n} = {v:.6}")
+                }
+            })
+            .collect();
+        let _ = writeln!(t, "{}: {}", f.structure, shown.join(", "));
+    }
+    for f in &s.fits {
+        for flag in &f.flags {
+            let _ = writeln!(t, "flag on {}: {flag}", f.structure);
+        }
+        if let Some(n) = &f.note {
+            let _ = writeln!(t, "note on {}: {n}", f.structure);
+        }
+    }
+    for k in &s.skipped {
+        let _ = writeln!(t, "skipped {}: {}", k.structure, k.reason);
+    }
+    for i in implied.unwrap_or_default() {
+        let pairs: Vec<String> = i
+            .lags
+            .iter()
+            .zip(&i.correlation)
+            .map(|(u, c)| format!("{u}: {c:.4}"))
+            .collect();
+        let _ = writeln!(
+            t,
+            "implied correlation of {} from time {} by lag: {}",
+            i.structure,
+            i.time,
+            pairs.join(", ")
+        );
+    }
+    t
 }

@@ -777,3 +777,78 @@ fn binary_response_lowess_is_a_proportion_unless_robustness_is_asked() {
         .iter()
         .all(|f| f.as_f64().unwrap().abs() < 1e-12));
 }
+
+#[test]
+fn screen_flags_a_boundary_fit_and_gives_implied_correlations() {
+    // Responses centred within each subject: subject totals 0, so by the determinant lemma and
+    // Sherman-Morrison the exchangeable likelihood falls with nu2 (closed form: nu2 = 0,
+    // tau2 = mean r^2), a fit on its boundary.
+    let mut csv = String::from("id,t,y\n");
+    for s in 0..40 {
+        let v: Vec<f64> = (0..5)
+            .map(|k| ((s * 13 + k * 5) % 11) as f64 * 0.3)
+            .collect();
+        let m = v.iter().sum::<f64>() / 5.0;
+        for (k, x) in v.iter().enumerate() {
+            csv += &format!("{s},{}.{},{}\n", k, s % 7, x - m);
+        }
+    }
+    let path = temp_csv("screen_flags.csv", &csv);
+    let args = [
+        "--poly-degree",
+        "0",
+        "--candidates",
+        "exchangeable,intercept_slope_error,intercept_slope_exponential_error",
+        "--correlation-lags",
+        "0,1,2.5",
+        "--correlation-time",
+        "1",
+    ];
+    let o = on_file("screen", &path, &args);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let d: Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(d["screening"]["time_origin"], 0.0);
+    let fits = d["screening"]["fits"].as_array().unwrap();
+    assert_eq!(fits.len(), 3);
+    let ex = fits
+        .iter()
+        .find(|f| f["structure"] == "exchangeable")
+        .unwrap();
+    assert_eq!(ex["parameters"][0], 0.0);
+    assert_eq!(ex["at_boundary"], serde_json::json!([true, false]));
+    assert_eq!(ex["flagged"], true);
+    assert!(ex["flags"][0]
+        .as_str()
+        .unwrap()
+        .starts_with("intercept_variance is at its lower bound 0"));
+    for f in fits {
+        let n = f["parameters"].as_array().unwrap().len();
+        assert_eq!(f["at_boundary"].as_array().unwrap().len(), n);
+        assert_eq!(f["flagged"], !f["flags"].as_array().unwrap().is_empty());
+    }
+    // Exchangeable implies nu2 / (nu2 + tau2) = 0 at every lag (closed form).
+    let implied = d["implied_correlation"].as_array().unwrap();
+    let e = implied
+        .iter()
+        .find(|i| i["structure"] == "exchangeable")
+        .unwrap();
+    assert_eq!(e["correlation"], serde_json::json!([0.0, 0.0, 0.0]));
+    assert_eq!(e["time"], 1.0);
+
+    let mut table_args = args.to_vec();
+    table_args.extend(["--format", "table"]);
+    let o = on_file("screen", &path, &table_args);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let text = String::from_utf8(o.stdout).unwrap();
+    assert!(text.lines().nth(1).unwrap().ends_with("flagged"), "{text}");
+    let row = text
+        .lines()
+        .find(|l| l.starts_with("exchangeable "))
+        .unwrap();
+    assert!(row.ends_with("FLAG"), "{text}");
+    assert!(
+        text.contains("flag on exchangeable: intercept_variance is at its lower bound 0"),
+        "{text}"
+    );
+    assert!(text.contains("implied correlation of exchangeable from time 1 by lag"));
+}

@@ -1,4 +1,4 @@
-//! Wall time of covariance screening (all seven candidates) on a simulated panel.
+//! Wall time of covariance screening (all nine candidates) on a simulated panel.
 //!
 //! ```text
 //! cargo run --release -p trajweave-core --example screen_speed [subjects]

@@ -438,3 +438,50 @@ def test_binary_warning_three_fronts(tmp_path):
     default = tw.mean_curve(panel, tw.Lowess(), at=[1, 4, 7]).fitted.tolist()
     same(from_r["default"], default, rel=R_REL_TOL)
     assert min(default) > 0  # the unset default runs no robustness iterations on 0/1 data
+
+
+def test_random_slope_screening_flags_and_implied_correlation_three_fronts(tmp_path):
+    # The random-slope structures beside intercept + exponential + error (flagged on these
+    # residuals: its intercept variance at 0), with each fit's boundary flags and the implied
+    # correlation from time 2: CLI = Python exactly, R within 1e-12 (log-likelihoods,
+    # correlations) and 1e-9 (parameters); flags and words identical.
+    cands = ["intercept_exponential_error", "intercept_slope_error",
+             "intercept_slope_exponential_error"]
+    lags = [0.0, 0.5, 1.0, 3.0]
+    out = json.loads(cli("screen", DEMO, "--subject", "patient", "--time", "years",
+                         "--response", "egfr", "--candidates", ",".join(cands),
+                         "--correlation-lags", ",".join(map(str, lags)),
+                         "--correlation-time", "2"))
+    from_cli = out["screening"]
+    df = pd.read_csv(DEMO)
+    panel = tw.Panel.from_frame(df, "patient", "years", "egfr")
+    r = tw.residuals(panel, tw.Polynomial(1))
+    s = tw.screen_structures(panel, r, candidates=cands)
+    assert from_cli == s.to_dict()
+    assert any(f["flagged"] for f in s.fits)
+    implied = [{"structure": f["structure"], "time": 2.0, "lags": lags,
+                "correlation": tw.implied_correlation(f["structure"], f["parameters"], 2.0,
+                                                      lags).tolist()}
+               for f in s.fits]
+    assert out["implied_correlation"] == implied
+    code = (f'df <- read.csv("{DEMO}")\n'
+            'p <- panel_from_frame(df, "patient", "years", "egfr")\n'
+            'r <- panel_residuals(p, residuals_polynomial(1))$residuals\n'
+            f's <- screen_structures(p, r, candidates = c({", ".join(repr(c) for c in cands)}))\n'
+            'implied <- lapply(s$fits$structure, function(n) I(implied_correlation(n, '
+            f's$parameters[[n]], time = 2, lags = c({", ".join(map(str, lags))}))))\n'
+            'cat(jsonlite::toJSON(list(structure = s$fits$structure, loglik = s$fits$loglik, '
+            'flagged = s$fits$flagged, time_origin = s$time_origin, '
+            'parameters = unname(lapply(s$parameters, function(v) I(unname(v)))), '
+            'at_boundary = unname(lapply(s$at_boundary, function(v) I(unname(v)))), '
+            'flags = unname(lapply(s$flags, I)), implied = implied), '
+            'digits = NA, auto_unbox = TRUE))')
+    from_r = json.loads(rscript(code, tmp_path))
+    assert from_r["structure"] == [f["structure"] for f in s.fits]
+    same(from_r["loglik"], [f["loglik"] for f in s.fits], rel=R_REL_TOL)
+    same(from_r["parameters"], [f["parameters"] for f in s.fits], rel=1e-9)
+    assert from_r["flagged"] == [f["flagged"] for f in s.fits]
+    assert from_r["at_boundary"] == [f["at_boundary"] for f in s.fits]
+    assert from_r["flags"] == [f["flags"] for f in s.fits]
+    assert from_r["time_origin"] == s.time_origin == 0
+    same(from_r["implied"], [i["correlation"] for i in implied], rel=R_REL_TOL)

@@ -161,14 +161,28 @@ def screen_structures(panel, residuals, candidates=None, edges=None, schedule=No
     likelihood (Gaussian, mean zero: the mean model is taken as fixed), ranked by AIC.
 
     ``candidates``: names among "independence", "exchangeable", "exponential", "gaussian",
-    "intercept_exponential_error", "toeplitz", "unstructured" (default all); the last two need
-    a grid (``edges``, or a ``schedule`` with a ``tolerance``) of at most 12 bins.
+    "intercept_exponential_error", "intercept_slope_error", "intercept_slope_exponential_error",
+    "toeplitz", "unstructured" (default all); the last two need a grid (``edges``, or a
+    ``schedule`` with a ``tolerance``) of at most 12 bins.
+
+    Each fit carries ``at_boundary`` (one flag per parameter), ``flags`` (in words) and
+    ``flagged``; ``time_origin`` is the time at which the random-slope structures' intercept
+    variance is given (0: the times as given).
     """
     return Record(json.loads(_trajweave.panel_screen_structures(
         panel._native, _values(panel, residuals, "residuals"),
         candidates=None if candidates is None else [str(c) for c in candidates],
         max_iterations=float(max_iterations), convergence=float(convergence),
         **_grid_args(edges, schedule, tolerance))))
+
+
+def implied_correlation(structure, parameters, time, lags, edges=None, schedule=None, tolerance=None):
+    """The correlation ``structure`` at ``parameters`` implies between two separate measurements
+    at ``time`` and ``time + lag`` for each lag (numpy array; NaN where a time is in no bin of
+    the grid that toeplitz and unstructured need)."""
+    return np.array(_trajweave.structure_implied_correlation(
+        str(structure), [float(x) for x in parameters], float(time), [float(u) for u in lags],
+        **_grid_args(edges, schedule, tolerance)), dtype=float)
 
 
 def structure_loglik(panel, residuals, structure, parameters, edges=None, schedule=None, tolerance=None):

@@ -1,6 +1,7 @@
-# Covariance screening: structure_loglik(), screen_structures() and process_variance().
-# Every expected value is computed here with base R (chol, backsolve, crossprod, outer) or is
-# the generating truth of a simulation; none comes from trajweave itself.
+# Covariance screening: structure_loglik(), screen_structures(), implied_correlation() and
+# process_variance(). Every expected value is computed here with base R (chol, backsolve,
+# crossprod, outer, cov2cor), is a closed form, the generating truth of a simulation, or comes
+# from R's nlme (tests/fixtures/screen_nlme_r.json); none comes from trajweave itself.
 
 TOL_LOGLIK <- 1e-9
 TOL_PROCESS <- 1e-12
@@ -35,6 +36,13 @@ irregular_frame <- function() {
   d[sample(nrow(d)), ]
 }
 
+# Z G Z' with Z = cbind(1, t) and G from two variances and a correlation.
+slope_part <- function(t, v0, v1, r) {
+  c01 <- r * sqrt(v0 * v1)
+  Z <- cbind(1, t)
+  Z %*% matrix(c(v0, c01, c01, v1), 2) %*% t(Z)
+}
+
 test_that("structure_loglik matches a base-R normal density on irregular visits", {
   d <- irregular_frame()
   p <- panel(d$id, d$t, d$r)
@@ -50,6 +58,14 @@ test_that("structure_loglik matches a base-R normal density on irregular visits"
     intercept_exponential_error = list(
       c(1.2, 0.8, 1.5, 0.4),
       function(t) 1.2 + 0.8 * exp(-lag(t) / 1.5) + diag(0.4, length(t))
+    ),
+    intercept_slope_error = list(
+      c(1.1, 0.2, -0.3, 0.6),
+      function(t) slope_part(t, 1.1, 0.2, -0.3) + diag(0.6, length(t))
+    ),
+    intercept_slope_exponential_error = list(
+      c(1.1, 0.2, 0.4, 0.8, 1.5, 0.3),
+      function(t) slope_part(t, 1.1, 0.2, 0.4) + 0.8 * exp(-lag(t) / 1.5) + diag(0.3, length(t))
     )
   )
   for (name in names(cases)) {
@@ -175,9 +191,18 @@ test_that("screen_structures reports every field, AIC and BIC by their definitio
   f <- s$fits
   expect_named(f, c(
     "structure", "n_parameters", "loglik", "aic", "bic", "delta_aic", "delta_bic",
-    "iterations", "converged", "note"
+    "iterations", "converged", "flagged", "note"
+  ))
+  expect_named(s, c(
+    "fits", "parameters", "at_boundary", "flags", "skipped", "subjects", "observations",
+    "time_origin"
   ))
   expect_identical(names(s$parameters), f$structure)
+  expect_identical(names(s$at_boundary), f$structure)
+  expect_identical(lapply(s$at_boundary, names), lapply(s$parameters, names))
+  expect_identical(unname(vapply(s$flags, length, 1L) > 0), f$flagged)
+  expect_identical(s$time_origin, 0)
+  expect_true(all(c("intercept_slope_error", "intercept_slope_exponential_error") %in% f$structure))
   expect_identical(unname(lengths(s$parameters)), as.integer(f$n_parameters))
   expect_identical(f$structure, f$structure[order(f$aic)])
   expect_equal(s$observations, length(x$residuals)) # no row dropped
@@ -206,6 +231,86 @@ test_that("unstructured on complete data is the base-R covariance of the residua
     tolerance = 1e-8
   )
   expect_loglik_at_parameters(x, schedule = schedule, tolerance = 0.1)
+})
+
+test_that("random-slope maxima match nlme::lme by ML (tests/fixtures/screen_nlme_r.json)", {
+  # lme(y ~ 1, random = ~ time | id [, corExp(nugget = TRUE)], method = "ML"): its fixed
+  # intercept b is removed (r = y - b; lme's theta maximises l(b, theta), see the R script),
+  # then our maximum is lme's log-likelihood and, where interior, its parameters.
+  fx <- tw_fixture("screen_nlme_r.json")
+  for (case in fx$cases) {
+    label <- paste(case$name, case$structure)
+    id <- as.integer(unlist(case$subject))
+    r <- tw_numbers(case$y) - case$fixed_intercept
+    p <- panel(id, tw_numbers(case$time), r)
+    s <- screen_structures(p, r, candidates = case$structure)
+    want <- case$loglik
+    # Our density at lme's parameters is lme's logLik.
+    at <- structure_loglik(p, r, case$structure, tw_numbers(case$parameters))
+    expect_equal(at, want, tolerance = 1e-9, info = label)
+    if (case$compare == "loglik_and_parameters") {
+      expect_equal(s$fits$loglik, want, tolerance = 1e-4, info = label)
+      expect_equal(unname(s$parameters[[1]]), tw_numbers(case$parameters),
+        tolerance = 1e-4, info = label
+      )
+      expect_false(s$fits$flagged, info = label)
+    } else {
+      # lme stops on the boundary short of the edge: ours is at least its l, and flagged.
+      expect_gte(s$fits$loglik, want)
+      expect_equal(s$fits$loglik, want, tolerance = 1e-4, info = label)
+      expect_true(s$fits$flagged, info = label)
+    }
+  }
+})
+
+test_that("a between-subject variance at its bound 0 is flagged (closed form)", {
+  # Residuals centred within each subject have subject totals 0, so the exchangeable
+  # likelihood falls with nu2 (determinant lemma, Sherman-Morrison): nu2 = 0, tau2 = mean r^2.
+  d <- irregular_frame()
+  r <- d$r - ave(d$r, d$id)
+  p <- panel(d$id, d$t, r)
+  s <- screen_structures(p, r, candidates = "exchangeable")
+  expect_equal(unname(s$parameters$exchangeable), c(0, mean(r^2)), tolerance = 1e-12)
+  expect_identical(unname(s$at_boundary$exchangeable), c(TRUE, FALSE))
+  expect_true(s$fits$flagged)
+  expect_match(s$flags$exchangeable[1], "^intercept_variance is at its lower bound 0")
+  expect_output(print(s), "flag on exchangeable: intercept_variance is at its lower bound 0")
+  # An optimiser stopped by max_iterations is flagged too.
+  s <- screen_structures(p, d$r, candidates = "intercept_slope_error", max_iterations = 2)
+  expect_false(s$fits$converged)
+  expect_identical(
+    s$flags$intercept_slope_error[length(s$flags$intercept_slope_error)],
+    "the optimiser stopped at max_iterations without converging"
+  )
+})
+
+test_that("implied_correlation is cov2cor of the two-visit covariance built in base R", {
+  lags <- c(0, 0.5, 2, -1)
+  cases <- list(
+    list("exchangeable", c(3, 1), function(t) matrix(3, 2, 2) + diag(1, 2)),
+    list("exponential", c(2, 1.5), function(t) 2 * exp(-abs(outer(t, t, "-")) / 1.5)),
+    list("intercept_slope_error", c(1.1, 0.2, -0.3, 0.6), function(t) {
+      slope_part(t, 1.1, 0.2, -0.3) + diag(0.6, 2)
+    }),
+    list("intercept_slope_exponential_error", c(1.1, 0.2, 0.4, 0.8, 1.5, 0.3), function(t) {
+      slope_part(t, 1.1, 0.2, 0.4) + 0.8 * exp(-abs(outer(t, t, "-")) / 1.5) + diag(0.3, 2)
+    })
+  )
+  for (case in cases) {
+    for (t0 in c(0, 3)) {
+      # Two separate measurements at t0 and t0 + u: each with its own error.
+      expected <- vapply(lags, function(u) cov2cor(case[[3]](c(t0, t0 + u)))[1, 2], 1)
+      got <- implied_correlation(case[[1]], case[[2]], time = t0, lags = lags)
+      expect_equal(got, expected, tolerance = 1e-14, info = case[[1]])
+    }
+  }
+  expect_error(implied_correlation("toeplitz", c(2, 1), 0, 1),
+    class = "trajweave_invalid_option", regexp = "`grid`"
+  )
+  expect_identical(
+    implied_correlation("toeplitz", c(2, 1), 0, c(1, 5), schedule = c(0, 1), tolerance = 0.2),
+    c(0.5, NA)
+  )
 })
 
 test_that("process_variance matches a brute-force mean over between-subject pairs", {
@@ -258,5 +363,23 @@ test_that("screening refuses bad input with classed conditions naming the argume
   )
   expect_error(screen_structures(p, "a"),
     class = "trajweave_invalid_option", regexp = "`residuals`"
+  )
+  expect_tw_error(
+    structure_loglik(p, d$r, "intercept_slope_error", c(1, 0.5, 1.5, 1)), "invalid_option",
+    paste(
+      "`parameters` = intercept_slope_correlation = 1.5 is not allowed:",
+      "intercept_slope_correlation must be in [-1, 1]"
+    )
+  )
+  expect_tw_error(
+    implied_correlation("intercept_slope_exponential_error", rep(1, 5), 0, 1), "invalid_option",
+    paste(
+      "`parameters` = 5 value(s) is not allowed: intercept_slope_exponential_error takes 6",
+      "parameters: intercept_variance, slope_variance, intercept_slope_correlation,",
+      "serial_variance, range, error_variance"
+    )
+  )
+  expect_error(implied_correlation("ar1", 1, 0, 1),
+    class = "trajweave_invalid_option", regexp = "`structure`"
   )
 })

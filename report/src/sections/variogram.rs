@@ -160,7 +160,9 @@ pub(crate) fn build(
         for (k, f) in [&c.stationary, &c.random_slope].into_iter().enumerate() {
             // By kind, not by value: a random-slope fit holds NaN curves, never equal to
             // themselves.
-            let read = chosen.as_ref().is_some_and(|c| c.random_slope == f.random_slope);
+            let read = chosen
+                .as_ref()
+                .is_some_and(|c| c.random_slope == f.random_slope);
             let mut l = line(
                 &format!(
                     "{} fit{}",

@@ -1,12 +1,17 @@
 //! Covariance-structure screening of residuals (core module `screen`).
 //!
-//! Each candidate's maximised log-likelihood, AIC and BIC cross as a data.frame (best first,
-//! `-Inf` kept for a candidate whose matrix was never positive definite), its parameters as a
-//! named list of named numeric vectors (`NA` where the core has NaN). The grid that toeplitz
-//! and unstructured need is given by edges, or a schedule with a tolerance (`NULL` for none).
+//! Each candidate's maximised log-likelihood, AIC, BIC and `flagged` cross as a data.frame
+//! (best first, `-Inf` kept for a candidate whose matrix was never positive definite), its
+//! parameters as a named list of named numeric vectors (`NA` where the core has NaN), its
+//! per-parameter boundary flags as a named list of named logical vectors and its flags in
+//! words as a named list of character vectors. The grid that toeplitz and unstructured need is
+//! given by edges, or a schedule with a tolerance (`NULL` for none). The implied correlation
+//! by lag crosses as a numeric vector (`NA` where a time is in no bin).
 
 use extendr_api::prelude::*;
-use trajweave_core::correlation::screen::{screen_structures, structure_loglik, ScreenOptions, Structure};
+use trajweave_core::correlation::screen::{
+    implied_correlation, screen_structures, structure_loglik, ScreenOptions, Structure,
+};
 use trajweave_core::TimeGrid;
 
 use crate::convert::{
@@ -32,7 +37,8 @@ fn grid(edges: &Robj, schedule: &Robj, tolerance: &Robj) -> Result<Option<TimeGr
 }
 
 /// Fits the `candidates` (names; `NULL`: all) to `residuals` (one per input row, the caller's
-/// order) as `list(fits, parameters, skipped, subjects, observations)`.
+/// order) as `list(fits, parameters, at_boundary, flags, skipped, subjects, observations,
+/// time_origin)`.
 #[extendr]
 #[allow(clippy::too_many_arguments)] // one argument per option of the R function
 fn tw_screen_structures(
@@ -97,6 +103,7 @@ fn run_screen(
             "delta_bic",
             "iterations",
             "converged",
+            "flagged",
             "note",
         ]
         .into_iter(),
@@ -110,6 +117,7 @@ fn run_screen(
             f.iter().map(|x| x.delta_bic).collect_robj(),
             usize_counts(f.iter().map(|x| &x.iterations)),
             f.iter().map(|x| x.converged).collect_robj(),
+            f.iter().map(|x| x.flagged).collect_robj(),
             f.iter().map(|x| x.note.as_deref()).collect_robj(),
         ],
         f.len(),
@@ -123,6 +131,20 @@ fn run_screen(
         })
         .collect::<Result<Vec<_>, Failure>>()?;
     let parameters = named_list(f.iter().map(|x| x.structure.as_str()), parameters)?;
+    let at_boundary = f
+        .iter()
+        .map(|x| {
+            let mut v: Robj = x.at_boundary.iter().copied().collect_robj();
+            v.set_names(x.parameter_names.iter().map(String::as_str))?;
+            Ok(v)
+        })
+        .collect::<Result<Vec<_>, Failure>>()?;
+    let at_boundary = named_list(f.iter().map(|x| x.structure.as_str()), at_boundary)?;
+    let flags = f
+        .iter()
+        .map(|x| Strings::from_values(x.flags.iter().map(String::as_str)).into())
+        .collect::<Vec<Robj>>();
+    let flags = named_list(f.iter().map(|x| x.structure.as_str()), flags)?;
     let skipped = data_frame(
         ["structure", "reason"].into_iter(),
         vec![
@@ -135,13 +157,26 @@ fn run_screen(
         s.skipped.len(),
     )?;
     named_list(
-        ["fits", "parameters", "skipped", "subjects", "observations"].into_iter(),
+        [
+            "fits",
+            "parameters",
+            "at_boundary",
+            "flags",
+            "skipped",
+            "subjects",
+            "observations",
+            "time_origin",
+        ]
+        .into_iter(),
         vec![
             fits,
             parameters,
+            at_boundary,
+            flags,
             skipped,
             (s.subjects as f64).into(),
             (s.observations as f64).into(),
+            s.time_origin.into(),
         ],
     )
 }
@@ -179,29 +214,74 @@ fn run_loglik(
     tolerance: &Robj,
 ) -> Outcome {
     let panel = panel_ref(panel)?;
-    // Matched here rather than by Structure::parse, whose error names `candidates`.
-    let structure = match strings(structure, "structure")?.as_slice() {
-        [Some(name)] => Structure::ALL
-            .iter()
-            .copied()
-            .find(|s| s.name() == name)
-            .ok_or_else(|| invalid_option("structure", format!("{name:?}"), &names_allowed()))?,
-        _ => {
-            return Err(invalid_option(
-                "structure",
-                value_text(structure),
-                &format!("give one structure name; {}", names_allowed()),
-            ))
-        }
-    };
+    let structure = one_structure(structure)?;
     let parameters = real_slice(parameters, "parameters")?;
     let grid = grid(edges, schedule, tolerance)?;
     let r = panel_residuals(panel, values)?;
     Ok(structure_loglik(panel, &r, structure, parameters, grid.as_ref())?.into())
 }
 
+/// One structure name; matched here rather than by Structure::parse, whose error names
+/// `candidates`.
+fn one_structure(structure: &Robj) -> Result<Structure, Failure> {
+    match strings(structure, "structure")?.as_slice() {
+        [Some(name)] => Structure::ALL
+            .iter()
+            .copied()
+            .find(|s| s.name() == name)
+            .ok_or_else(|| invalid_option("structure", format!("{name:?}"), &names_allowed())),
+        _ => Err(invalid_option(
+            "structure",
+            value_text(structure),
+            &format!("give one structure name; {}", names_allowed()),
+        )),
+    }
+}
+
+/// The correlation `structure` at `parameters` implies between measurements at `time` and
+/// `time + lags`.
+#[extendr]
+fn tw_implied_correlation(
+    structure: Robj,
+    parameters: Robj,
+    time: Robj,
+    lags: Robj,
+    edges: Robj,
+    schedule: Robj,
+    tolerance: Robj,
+) -> Robj {
+    respond(run_implied(
+        &structure,
+        &parameters,
+        &time,
+        &lags,
+        &edges,
+        &schedule,
+        &tolerance,
+    ))
+}
+
+fn run_implied(
+    structure: &Robj,
+    parameters: &Robj,
+    time: &Robj,
+    lags: &Robj,
+    edges: &Robj,
+    schedule: &Robj,
+    tolerance: &Robj,
+) -> Outcome {
+    let structure = one_structure(structure)?;
+    let parameters = real_slice(parameters, "parameters")?;
+    let time = one_number(time, "time")?;
+    let lags = real_slice(lags, "lags")?;
+    let grid = grid(edges, schedule, tolerance)?;
+    let c = implied_correlation(structure, parameters, time, lags, grid.as_ref())?;
+    Ok(reals_na(&c))
+}
+
 extendr_module! {
     mod screen;
     fn tw_screen_structures;
     fn tw_structure_loglik;
+    fn tw_implied_correlation;
 }

@@ -12,7 +12,7 @@
 use super::fit::{Control, Fitted, Moments, GRID_POINTS, LOGIT_CAP, NM_XTOL};
 use super::irregular::{profiled, Data};
 use super::random_slope::{
-    covariance_of, slope_terms, variances_and_correlation, SlopeShape, TimeScale,
+    covariance_of, slope_terms, variances_and_correlation, SlopeShape, SlopeStats, TimeScale,
 };
 use crate::numeric::optimize::nelder_mead;
 
@@ -189,11 +189,17 @@ pub(crate) fn random_slope(
             w_tau: w[k],
         }
     };
+    // Without the serial part, per-subject sums make each evaluation O(1) per subject.
+    let stats = (!serial).then(|| SlopeStats::new(data, scale));
+    let terms = |sh: SlopeShape| match &stats {
+        Some(st) => st.terms(data, sh),
+        None => slope_terms(data, scale, sh),
+    };
     let negl = |x: &[f64]| {
         if !x.iter().all(|v| v.is_finite() && v.abs() < 700.0) {
             return f64::INFINITY;
         }
-        match slope_terms(data, scale, shape(x)) {
+        match terms(shape(x)) {
             Some((ld, q)) => -profiled(n, ld, q).0,
             None => f64::INFINITY,
         }
@@ -217,7 +223,7 @@ pub(crate) fn random_slope(
     let second = nelder_mead(negl, &first.x, 0.25, c.tolerance, NM_XTOL, c.max_iterations);
     let m = if second.f <= first.f { &second } else { &first };
     let sh = shape(&m.x);
-    let Some((ld, q)) = slope_terms(data, scale, sh) else {
+    let Some((ld, q)) = terms(sh) else {
         return Fitted::singular(
             n_params,
             starts.len(),

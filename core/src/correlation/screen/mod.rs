@@ -93,7 +93,7 @@ use fit::{Control, Fitted, Moments, GRID_POINTS};
 use fit_slope::{slope_error_starts, slope_serial_starts, SlopeMoments};
 use flags::{boundary_flags, FlagContext};
 use irregular::{loglik_at, shape_terms, Data, ExchangeableStats, Serial, Shape};
-use random_slope::{covariance_of, slope_terms, SlopeShape, TimeScale};
+use random_slope::{covariance_of, slope_terms, SlopeShape, SlopeStats, TimeScale};
 
 /// Settings of [`screen_structures`].
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -561,7 +561,12 @@ pub fn structure_loglik(
                     w_tau: p[5],
                 }
             };
-            match slope_terms(data, scale, shape) {
+            let terms = if structure == Structure::InterceptSlopeError {
+                SlopeStats::new(data, scale).terms(data, shape)
+            } else {
+                slope_terms(data, scale, shape)
+            };
+            match terms {
                 Some((ld, q)) => loglik_at(n, 1.0, ld, q),
                 None => f64::NEG_INFINITY,
             }

@@ -15,8 +15,12 @@
 //!
 //! ln det M = sum_j ln F_j,   r' M^-1 r = sum_j v_j^2 / F_j
 //!
-//! exactly, for M = Z G_u Z' + w_s R(phi) + w_tau I. Without the serial part (w_s = 0) the
-//! same filter runs on (b0, b1) alone.
+//! exactly, for M = Z G_u Z' + w_s R(phi) + w_tau I.
+//!
+//! Without the serial part (w_s = 0) no filter is needed: with A = Z'Z and b = Z'r per subject
+//! (sums kept once, [`SlopeStats`]), the determinant lemma and Woodbury's identity give
+//! det M = w_tau^(n-2) det(w_tau I + A G_u) and r' M^-1 r = (r'r - b' G_u (w_tau I + A G_u)^-1 b)
+//! / w_tau, O(1) per subject and evaluation.
 //!
 //! The time is centred and scaled ([`TimeScale`]) only for the optimiser's conditioning; the
 //! covariance of (intercept, slope) is reported at time 0 of the panel's time scale in its
@@ -108,6 +112,67 @@ pub(crate) fn slope_terms(
     block_sum(data, |i, _| filter_subject(data, i, scale, shape))
 }
 
+/// Per subject: n, r'r, sum u, sum u^2, sum r, sum u r (u the scaled time), for the shape
+/// without a serial part.
+pub(crate) struct SlopeStats {
+    subjects: Vec<[f64; 6]>,
+}
+
+impl SlopeStats {
+    pub fn new(data: Data<'_>, scale: TimeScale) -> SlopeStats {
+        let subjects = (0..data.n_subjects())
+            .map(|i| {
+                let rows = data.rows(i);
+                let mut s = [0.0; 6];
+                for (t, r) in data.time[rows.clone()].iter().zip(&data.r[rows]) {
+                    let u = (t - scale.centre) / scale.spread;
+                    s[0] += 1.0;
+                    s[1] += r * r;
+                    s[2] += u;
+                    s[3] += u * u;
+                    s[4] += r;
+                    s[5] += u * r;
+                }
+                s
+            })
+            .collect();
+        SlopeStats { subjects }
+    }
+
+    /// The terms of [`slope_terms`] for a shape with `w_s` = 0, by the determinant lemma and
+    /// Woodbury's identity; `None` when some M_i is not positive definite (det(w_tau I + A G)
+    /// at or below 1e-12 w_tau^2, or a negative quadratic form).
+    pub fn terms(&self, data: Data<'_>, shape: SlopeShape) -> Option<(f64, f64)> {
+        let [g00, g01, g11] = shape.g;
+        let tau = shape.w_tau;
+        if tau.is_nan() || tau <= 0.0 {
+            return None;
+        }
+        let ln_tau = tau.ln();
+        block_sum(data, |i, _| {
+            let [n, rr, s1, s2, b0, b1] = self.subjects[i];
+            // M = tau I + A G with A = [[n, s1], [s1, s2]].
+            let m00 = tau + n * g00 + s1 * g01;
+            let m01 = n * g01 + s1 * g11;
+            let m10 = s1 * g00 + s2 * g01;
+            let m11 = tau + s1 * g01 + s2 * g11;
+            let det = m00 * m11 - m01 * m10;
+            if det.is_nan() || det <= 1e-12 * tau * tau {
+                return None;
+            }
+            // y = M^-1 b, then b' G y.
+            let y0 = (m11 * b0 - m01 * b1) / det;
+            let y1 = (m00 * b1 - m10 * b0) / det;
+            let bg = b0 * (g00 * y0 + g01 * y1) + b1 * (g01 * y0 + g11 * y1);
+            let quad = (rr - bg) / tau;
+            if quad.is_nan() || quad < -1e-12 * rr / tau {
+                return None;
+            }
+            Some(((n - 2.0) * ln_tau + det.ln(), quad.max(0.0)))
+        })
+    }
+}
+
 fn filter_subject(
     data: Data<'_>,
     i: usize,
@@ -151,7 +216,8 @@ fn filter_subject(
             return None;
         }
         let v = r[j] - (x0 + u * x1 + x2);
-        let (k0, k1, k2) = (m0 / f, m1 / f, m2 / f);
+        let inv_f = 1.0 / f;
+        let (k0, k1, k2) = (m0 * inv_f, m1 * inv_f, m2 * inv_f);
         x0 += k0 * v;
         x1 += k1 * v;
         x2 += k2 * v;
@@ -162,7 +228,7 @@ fn filter_subject(
         p02 -= k0 * m2;
         p12 -= k1 * m2;
         p22 -= k2 * m2;
-        q += v * v / f;
+        q += v * v * inv_f;
         // One ln per subject, not per visit, unless the product nears the ends of the range.
         prod *= f;
         if !(1e-150..=1e150).contains(&prod) {

@@ -61,6 +61,15 @@ impl Structure {
     /// # Errors
     /// [`Error::InvalidOption`] naming `candidates` and listing the allowed names.
     pub fn parse(name: &str) -> Result<Structure> {
+        Structure::parse_argument(name, "candidates")
+    }
+
+    /// As [`Structure::parse`], the error naming `argument` (e.g. `structure` where one name
+    /// is asked for).
+    ///
+    /// # Errors
+    /// [`Error::InvalidOption`] naming `argument` and listing the allowed names.
+    pub fn parse_argument(name: &str, argument: &str) -> Result<Structure> {
         Structure::ALL
             .iter()
             .copied()
@@ -68,7 +77,7 @@ impl Structure {
             .ok_or_else(|| {
                 let names: Vec<&str> = Structure::ALL.iter().map(|s| s.name()).collect();
                 Error::option(
-                    "candidates",
+                    argument,
                     format!("{name:?}"),
                     &format!("use one of: {}", names.join(", ")),
                 )
